@@ -1,0 +1,178 @@
+"""The immutable result of a solve: a design.
+
+A :class:`Design` holds forces in N, volumes in m3, lengths in m.  It is only
+ever built from a proven LP optimum; a failed solve raises
+:class:`~bridgeopt.errors.SolveError` instead.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+__all__ = ["Members", "Design", "equilibrium_residual"]
+
+
+def _frozen(a) -> np.ndarray:
+    a = np.array(a)
+    a.setflags(write=False)
+    return a
+
+
+@dataclass(frozen=True)
+class Members:
+    """Members of a design, as parallel read-only arrays.
+
+    Attributes
+    ----------
+    start, end : int arrays
+        Indices into :attr:`Design.nodes` (start is the left or lower end).
+    sense : str array
+        ``"tension"`` or ``"compression"``.
+    horizontal_force : float array
+        Constant horizontal force component of a curved or straight member;
+        0 for a vertical member. [N]
+    force_start, force_end : (m, 2) float arrays
+        Force the member applies to its start / end node, (x, z). [N]
+    volume : float array
+        Material volume. [m3]
+    sag : float array
+        Largest vertical distance between centreline and chord. [m]
+    curves : tuple of (k, 2) arrays
+        Points along each centreline, start to end. [m]
+    group : str array
+        Element group label (``"member"`` for layout optimization; forms use
+        ``"stay"``, ``"pylon"``, ``"deck"`` ...).
+    """
+
+    start: np.ndarray
+    end: np.ndarray
+    sense: np.ndarray
+    horizontal_force: np.ndarray
+    force_start: np.ndarray
+    force_end: np.ndarray
+    volume: np.ndarray
+    sag: np.ndarray
+    curves: tuple
+    group: np.ndarray
+
+    def __post_init__(self) -> None:
+        for name in ("start", "end", "sense", "horizontal_force", "force_start",
+                     "force_end", "volume", "sag", "group"):
+            object.__setattr__(self, name, _frozen(getattr(self, name)))
+        object.__setattr__(self, "curves", tuple(_frozen(c) for c in self.curves))
+
+    def __len__(self) -> int:
+        return len(self.start)
+
+    @property
+    def axial_force(self) -> np.ndarray:
+        """Largest end force magnitude of each member. [N]"""
+        return np.maximum(np.hypot(*self.force_start.T), np.hypot(*self.force_end.T))
+
+
+def equilibrium_residual(nodes, members: Members, loads, reactions) -> np.ndarray:
+    """Out-of-balance force at every node, (n, 2). [N]
+
+    Sums the end forces of the members, the applied loads and the reactions,
+    independently of the LP that produced them.
+    """
+    r = np.array(loads, dtype=float).reshape(-1, 2).copy()
+    np.add.at(r, members.start, members.force_start)
+    np.add.at(r, members.end, members.force_end)
+    for node, rx, rz in reactions:
+        r[int(node)] += (rx, rz)
+    return r
+
+
+@dataclass(frozen=True)
+class Design:
+    """A solved layout.
+
+    Attributes
+    ----------
+    status : str
+        ``"optimal"``.
+    message : str
+    volume : float
+        Material volume of the reported structure (``copies`` times the model). [m3]
+    weight : float
+        Self-weight of the reported structure (0 when weightless). [N]
+    nodes : (n, 2) float array
+        Coordinates of the nodes that carry members, loads or supports. [m]
+    members : Members
+    loads : (n, 2) float array
+        Applied nodal loads (self-weight excluded). [N]
+    reactions : (r, 3) float array
+        Rows of (node, Rx, Rz). [-, N, N]
+    duals : (n, 2) float array
+        Equality-row duals: volume added per unit load at each node. [m3/N]
+    stats : dict
+        ``rounds``, ``columns`` (in the final LP), ``candidates`` (potential
+        columns), ``seconds``, ``grid_nodes``.
+    copies : float
+        Number of copies of the model in the reported structure. [-]
+    model_volume : float
+        Volume of the modelled part. [m3]
+    equilibrium_error : float
+        Largest nodal out-of-balance divided by the total applied load. [-]
+    problem : object
+        The problem solved (frozen).
+    """
+
+    status: str
+    message: str
+    volume: float
+    weight: float
+    nodes: np.ndarray
+    members: Members
+    loads: np.ndarray
+    reactions: np.ndarray
+    duals: np.ndarray
+    stats: dict
+    copies: float
+    model_volume: float
+    equilibrium_error: float
+    problem: object = field(repr=False, default=None)
+
+    def __post_init__(self) -> None:
+        for name in ("nodes", "loads", "reactions", "duals"):
+            object.__setattr__(self, name, _frozen(getattr(self, name)))
+        object.__setattr__(self, "stats", dict(self.stats))
+
+    def to_frame(self):
+        """Members as a :class:`pandas.DataFrame` (one row per member, SI units in the names)."""
+        import pandas as pd
+
+        m = self.members
+        return pd.DataFrame({
+            "start": m.start, "end": m.end,
+            "x_start_m": self.nodes[m.start, 0], "z_start_m": self.nodes[m.start, 1],
+            "x_end_m": self.nodes[m.end, 0], "z_end_m": self.nodes[m.end, 1],
+            "sense": m.sense, "group": m.group,
+            "horizontal_force_N": m.horizontal_force,
+            "axial_force_N": m.axial_force,
+            "volume_m3": m.volume, "sag_m": m.sag,
+        })
+
+    def nodes_frame(self):
+        """Nodes as a :class:`pandas.DataFrame` with loads and reactions."""
+        import pandas as pd
+
+        df = pd.DataFrame({"x_m": self.nodes[:, 0], "z_m": self.nodes[:, 1],
+                           "load_x_N": self.loads[:, 0], "load_z_N": self.loads[:, 1]})
+        df["reaction_x_N"] = 0.0
+        df["reaction_z_N"] = 0.0
+        for node, rx, rz in self.reactions:
+            df.loc[int(node), ["reaction_x_N", "reaction_z_N"]] += (rx, rz)
+        return df
+
+    def summary(self) -> str:
+        """A few lines for the engineer."""
+        m = self.members
+        n_t = int((m.sense == "tension").sum())
+        return (f"{self.status}: volume {self.volume:.6g} m3, weight {self.weight:.6g} N, "
+                f"{len(m)} members ({n_t} tension, {len(m) - n_t} compression), "
+                f"{len(self.nodes)} nodes; {self.stats.get('rounds', 0)} LP rounds, "
+                f"{self.stats.get('seconds', 0.0):.2f} s")

@@ -1,0 +1,155 @@
+"""Element models: LP coefficients and centrelines.
+
+Three element kinds join two nodes P and Q:
+
+* weightless bar (k = 0): straight, force constant;
+* equal-strength curved element (k > 0, Lx > 0): a cable (tension) or arch
+  (compression) whose area varies so that the stress is the design stress
+  everywhere while it carries its own weight exactly;
+* vertical uniform-strength bar (Lx = 0): force grows as exp(k h) along it.
+
+Here k = rho*g/sigma [1/m].  All functions are vectorised and work in any
+consistent length unit (the LP calls them with lengths divided by a reference
+length and k multiplied by it).
+
+For an element with horizontal force H (curved) or smaller end force F
+(vertical), the forces the element applies to its end nodes are
+``H * (pxf, pzf)`` on P and ``H * (qxf, qzf)`` on Q, and its volume is
+``H * cost / sigma``.  The vertical components differ by the element's weight.
+
+References
+----------
+.. [1] D. Gilbert (1826), "On the mathematical theory of suspension bridges",
+   Phil. Trans. R. Soc. 116:202-218 (catenary of equal strength).
+.. [2] H.E. Fairclough, M. Gilbert, A.V. Pichugin, A. Tyas, I. Firth (2018),
+   "Theoretically optimal forms for very long-span bridges under gravity
+   loading", Proc. R. Soc. A 474:20170726.
+.. [3] S.P. Timoshenko, Strength of Materials, Part I (bar of uniform strength).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+__all__ = ["PHI_LIMIT", "curved_coefficients", "vertical_coefficients",
+           "centreline", "sag", "SENSES"]
+
+SENSES = ("tension", "compression")
+
+#: Columns with k*Lx above this are not generated (the cost grows without bound
+#: as k*Lx -> pi; a small margin keeps the LP well conditioned).
+PHI_LIMIT = np.pi * (1.0 - 1e-6)
+
+
+def curved_coefficients(lx, dz, k: float, sense: str):
+    """LP coefficients of non-vertical elements.
+
+    Parameters
+    ----------
+    lx : array_like
+        Horizontal projection xQ - xP, > 0. [L]
+    dz : array_like
+        Rise zQ - zP. [L]
+    k : float
+        rho*g/sigma of the element's material, >= 0. [1/L]
+    sense : {"tension", "compression"}
+
+    Returns
+    -------
+    cost, pxf, pzf, qxf, qzf : ndarray
+        ``cost`` is sigma*volume/H [L]; the others are the end-force factors.
+        Entries with k*lx >= PHI_LIMIT are nan (no element can span them).
+    """
+    lx = np.asarray(lx, dtype=float)
+    dz = np.asarray(dz, dtype=float)
+    if k == 0.0:
+        slope = dz / lx
+        cost = (lx * lx + dz * dz) / lx
+        low = high = slope
+    else:
+        phi = k * lx
+        with np.errstate(invalid="ignore", divide="ignore"):
+            s = np.where(phi < PHI_LIMIT, np.sin(phi), np.nan)
+            half = 2.0 * np.sin(0.5 * phi) ** 2          # 1 - cos(phi), no cancellation
+            low = (-half - np.expm1(-k * dz)) / s         # (cos phi - exp(-k dz)) / sin phi
+            high = (np.expm1(k * dz) + half) / s          # (exp(k dz) - cos phi) / sin phi
+            cost = 2.0 * (2.0 * np.sinh(0.5 * k * dz) ** 2 + half) / (k * s)
+    one = np.ones_like(cost)
+    if sense == "tension":      # P: H(1, tP), Q: H(-1, -tQ); tP = low, tQ = high
+        return cost, one, low, -one, -high
+    if sense == "compression":  # P: -H(1, aP), Q: H(1, aQ); aP = high, aQ = low
+        return cost, -one, -high, one, low
+    raise ValueError(f"sense must be 'tension' or 'compression', not {sense!r}")
+
+
+def vertical_coefficients(h, k: float, sense: str):
+    """LP coefficients of vertical elements from the lower node P to the upper node Q.
+
+    Parameters
+    ----------
+    h : array_like
+        Height zQ - zP, > 0. [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+
+    Returns
+    -------
+    cost, pzf, qzf : ndarray
+        ``cost`` is sigma*volume/F [L] with F the smaller end force; ``pzf`` and
+        ``qzf`` are the vertical end-force factors on P (lower) and Q (upper).
+    """
+    h = np.asarray(h, dtype=float)
+    grow = np.exp(k * h)
+    cost = h.copy() if k == 0.0 else np.expm1(k * h) / k
+    if sense == "tension":      # hangs from Q: lower end force F, upper F e^{kh}
+        return cost, np.ones_like(h), -grow
+    if sense == "compression":  # stands on P: upper end force F, lower F e^{kh}
+        return cost, -grow, np.ones_like(h)
+    raise ValueError(f"sense must be 'tension' or 'compression', not {sense!r}")
+
+
+def _end_slope(p, q, k: float, sense: str) -> float:
+    """tan of the centreline's slope at P."""
+    lx, dz = q[0] - p[0], q[1] - p[1]
+    _, _, pzf, _, _ = curved_coefficients(np.array([lx]), np.array([dz]), k, sense)
+    # P's force factor is (1, tP) for a cable and -(1, aP) for an arch: slope = pzf/pxf
+    return float(pzf[0]) if sense == "tension" else float(-pzf[0])
+
+
+def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
+    """Points along an element's centreline, shape (n, 2) (2 points if straight).
+
+    Cable: z(x) = zP + ln(cos tP / cos(tP + k x)) / k; arch: the mirror image
+    with the curvature reversed (tP here the end angle at P).
+    """
+    p = np.asarray(p, dtype=float)
+    q = np.asarray(q, dtype=float)
+    lx = q[0] - p[0]
+    if k == 0.0 or lx <= 0.0:
+        return np.vstack([p, q])
+    theta = np.arctan(_end_slope(p, q, k, sense))
+    x = np.linspace(0.0, lx, n)
+    turn = k * x if sense == "tension" else -k * x
+    z = p[1] + np.log(np.cos(theta) / np.cos(theta + turn)) / (k if sense == "tension" else -k)
+    z[-1] = q[1]
+    return np.column_stack([p[0] + x, z])
+
+
+def sag(p, q, k: float, sense: str) -> float:
+    """Largest vertical distance between the centreline and its chord. [L]
+
+    Zero for straight and vertical elements.  At the point of largest sag the
+    centreline's slope equals the chord's.
+    """
+    p = np.asarray(p, dtype=float)
+    q = np.asarray(q, dtype=float)
+    lx, dz = q[0] - p[0], q[1] - p[1]
+    if k == 0.0 or lx <= 0.0:
+        return 0.0
+    theta = np.arctan(_end_slope(p, q, k, sense))
+    chord = np.arctan(dz / lx)
+    x = (chord - theta) / k if sense == "tension" else (theta - chord) / k
+    turn = k * x if sense == "tension" else -k * x
+    z = np.log(np.cos(theta) / np.cos(theta + turn)) / (k if sense == "tension" else -k)
+    return float(abs(z - dz * x / lx))

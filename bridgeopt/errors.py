@@ -1,0 +1,57 @@
+"""Errors raised by bridgeopt.
+
+Two kinds of failure reach the user:
+
+* :class:`InputError` -- a value the user gave is outside its valid range.  The
+  message names the field, the value and the range, on one line.
+* :class:`SolveError` -- the optimisation did not reach a proven optimum (the
+  problem is infeasible, or HiGHS stopped early).  No design is returned.
+"""
+
+from __future__ import annotations
+
+__all__ = ["BridgeoptError", "InputError", "SolveError"]
+
+
+class BridgeoptError(Exception):
+    """Base class of every error bridgeopt raises on purpose."""
+
+
+class InputError(BridgeoptError, ValueError):
+    """A user-supplied value is invalid.
+
+    Parameters
+    ----------
+    field : str
+        Dotted name of the input, as written in a scenario file
+        (``"bridge.span"``, ``"support[2].at"``).
+    value : object
+        The offending value.
+    valid : str
+        The valid range or choices, in words with units
+        (``"> 0 m"``, ``"one of 'x', 'z', 'xz'"``).
+    """
+
+    def __init__(self, field: str, value: object, valid: str) -> None:
+        self.field = field
+        self.value = value
+        self.valid = valid
+        super().__init__(f"{field} = {value!r} is invalid: valid is {valid}")
+
+
+class SolveError(BridgeoptError, RuntimeError):
+    """The solver did not return a proven optimum; no design exists.
+
+    Parameters
+    ----------
+    status : str
+        Short machine-readable status (``"infeasible"``, ``"span-limit"``,
+        ``"solver"``).
+    message : str
+        A sentence for the engineer saying what went wrong and what to try.
+    """
+
+    def __init__(self, status: str, message: str) -> None:
+        self.status = status
+        self.message = message
+        super().__init__(message)
