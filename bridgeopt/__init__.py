@@ -1,0 +1,26 @@
+"""bridgeopt: minimum-volume layouts for long-span bridge concepts.
+
+Layout optimization on a ground structure (LP solved with HiGHS, member adding
+for fine grids), with equal-strength self-weight elements; bridge scenarios
+build the problems.
+
+CAUTION: concept-stage estimates only.  Buckling, dynamics, aerodynamics,
+fatigue, deflection and construction stages are not checked.  Defer to local
+codes and licensed engineers.
+"""
+
+from .bridge import ARRANGEMENTS, BridgeScenario
+from .cautions import CAUTIONS
+from .design import Design, Members
+from .errors import BridgeoptError, InputError, SolveError
+from .layout import optimize_layout
+from .materials import GRAVITY, PRESETS, Material, material_from_name
+from .problem import Domain, LineLoad, PointLoad, Problem, Support
+
+__all__ = [
+    "ARRANGEMENTS", "BridgeScenario", "CAUTIONS", "Design", "Members", "BridgeoptError",
+    "InputError", "SolveError", "optimize_layout", "GRAVITY", "PRESETS", "Material",
+    "material_from_name", "Domain", "LineLoad", "PointLoad", "Problem", "Support",
+]
+
+__version__ = "0.1.0"
