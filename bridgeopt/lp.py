@@ -39,6 +39,10 @@ log = logging.getLogger(__name__)
 PRICE_TOL = 1e-7
 #: Candidates priced per vectorised chunk.
 PRICE_CHUNK = 1_000_000
+#: A coarse-grid dual guess seeds the first LP with pairs whose u.a/c exceeds
+#: this, at most PREDICT_PER_NODE per node.
+PREDICT_RATIO = 0.98
+PREDICT_PER_NODE = 4
 #: Safety stop on member-adding rounds.
 MAX_ROUNDS = 500
 
@@ -212,7 +216,27 @@ def _price(data: LPData, cols: _Columns, u: np.ndarray, n_pairs: int):
     return tuple(np.concatenate(x) for x in zip(*found))
 
 
-def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = None) -> LPSolution:
+def _predicted(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
+    """Pairs predicted active by a guess of the duals (from a coarser grid)."""
+    picks, ratios = [], []
+    empty = _Columns(len(data.a))
+    for start in range(0, len(data.a), PRICE_CHUNK):
+        pair = np.arange(start, min(len(data.a), start + PRICE_CHUNK))
+        for sense in SENSES:
+            cost, rows, vals = column_entries(data, pair, sense)
+            with np.errstate(invalid="ignore"):
+                ratio = np.einsum("ij,ij->i", guess[rows], vals) / cost
+            near = np.nonzero(ratio > PREDICT_RATIO)[0]
+            picks.append(pair[near])
+            ratios.append(ratio[near])
+    pair, ratio = np.concatenate(picks), np.concatenate(ratios)
+    if len(pair) > limit:
+        pair = pair[np.argpartition(-ratio, limit)[:limit]]
+    return np.unique(pair)
+
+
+def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = None,
+             dual_guess: np.ndarray | None = None) -> LPSolution:
     """Minimum-volume member forces for the dimensionless problem ``data``.
 
     Parameters
@@ -223,6 +247,9 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
         (Gilbert & Tyas 2003); if False, solve the whole ground structure at once.
     batch : int, optional
         Most columns added per round (default: max(1000, 10% of columns in the LP)).
+    dual_guess : ndarray, optional
+        Estimated equality-row duals (e.g. interpolated from a coarser grid); the
+        pairs they predict to be active join the first LP.
 
     Raises
     ------
@@ -245,6 +272,9 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     cols = _Columns(n_pairs)
     reach = 1 if member_adding else np.inf
     rounds = 0
+    if member_adding and dual_guess is not None:
+        for s in range(2):
+            cols.add(h, data, _predicted(data, dual_guess, int(PREDICT_PER_NODE * n_nodes)), s)
     while True:
         start = np.nonzero(data.reach <= reach)[0]
         for s in range(2):

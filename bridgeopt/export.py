@@ -1,0 +1,198 @@
+"""Design -> JSON-ready dict, and an atomic JSON writer.
+
+:func:`design_to_dict` turns a :class:`~bridgeopt.design.Design` into plain
+Python values (dicts, lists, str, float, int, bool, None) in SI units, with
+the scenario's inputs and the cautions every output carries.  Non-finite
+numbers become ``None`` so the result is strict JSON.
+
+Top-level keys: ``bridgeopt_version``, ``schema``, ``name``, ``kind``,
+``source``, ``status``, ``message``, ``volume`` [m3], ``weight`` [N],
+``weight_kN``, ``mass_t``, ``model_volume`` [m3], ``copies``,
+``normalised_volume`` (bridges; else null), ``applied_load`` [N], ``nodes``,
+``members``, ``loads``, ``reactions``, ``stats``, ``inputs``, ``derived``,
+``units``, ``cautions``.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import tempfile
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from .cautions import CAUTION_LINES, CAUTIONS
+from .design import Design
+from .materials import GRAVITY
+from .scenario import Scenario, _problem_dict
+
+__all__ = ["SCHEMA", "UNITS", "design_to_dict", "scenario_inputs", "write_json", "to_json"]
+
+#: Identifier of the JSON layout written here.
+SCHEMA = "bridgeopt.design/1"
+
+#: Units of the numbers in the JSON.
+UNITS = {
+    "length": "m", "coordinates": "m", "force": "N", "line_load": "N/m", "volume": "m3",
+    "weight": "N", "weight_kN": "kN", "mass_t": "t (1000 kg)", "stress": "Pa",
+    "density": "kg/m3", "gravity": "m/s2", "time": "s", "normalised_volume": "-",
+}
+
+
+def _plain(value: Any) -> Any:
+    """``value`` with numpy types turned into Python ones and non-finite floats into None."""
+    if isinstance(value, dict):
+        return {str(k): _plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    if isinstance(value, np.ndarray):
+        return _plain(value.tolist())
+    if isinstance(value, (bool, np.bool_)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        v = float(value)
+        return v if math.isfinite(v) else None
+    if value is None or isinstance(value, str):
+        return value
+    return str(value)
+
+
+def scenario_inputs(scenario) -> dict:
+    """The inputs of a :class:`~bridgeopt.scenario.Scenario` in the scenario-file schema."""
+    return _plain(scenario.to_dict())
+
+
+def _derived(problem, scenario) -> dict:
+    """Quantities computed from the inputs (grid, self-weight lengths ...)."""
+    nx, nz = problem.grid_shape()
+    out: dict[str, Any] = {
+        "grid_cells": [nx, nz], "spacing": problem.spacing, "copies": problem.copies,
+        "applied_load_model": problem.total_applied_load(), "gravity": GRAVITY,
+        "self_supporting_length": {
+            "tension": problem.material.self_supporting_length("tension"),
+            "compression": problem.compression.self_supporting_length("compression"),
+        },
+    }
+    bridge = getattr(scenario, "bridge", None)
+    if bridge is not None:
+        out.update({
+            "model": "half span between mirror lines, reported as one whole span",
+            "normalised_span": bridge.normalised_span,
+            "rise_cells": bridge.rise_cells, "depth_cells": bridge.depth_cells,
+        })
+    return out
+
+
+def design_to_dict(design: Design, scenario=None, *, wall_seconds: float | None = None) -> dict:
+    """A JSON-ready dict of ``design`` (SI units; see the module docstring for the keys).
+
+    Parameters
+    ----------
+    design : Design
+    scenario : Scenario, optional
+        Adds the inputs in file schema, the name, kind and source; without it the
+        inputs come from ``design.problem``.
+    wall_seconds : float, optional
+        Total time including reading and checking, recorded in ``stats``.
+    """
+    problem = design.problem
+    m = design.members
+    nodes = [{"x": float(x), "z": float(z)} for x, z in design.nodes]
+    members = []
+    for i in range(len(m)):
+        members.append({
+            "id": i, "start": int(m.start[i]), "end": int(m.end[i]),
+            "sense": str(m.sense[i]), "group": str(m.group[i]),
+            "horizontal_force": float(m.horizontal_force[i]),
+            "axial_force": float(m.axial_force[i]),
+            "force_start": [float(v) for v in m.force_start[i]],
+            "force_end": [float(v) for v in m.force_end[i]],
+            "volume": float(m.volume[i]), "sag": float(m.sag[i]),
+            "curve": [[float(x), float(z)] for x, z in m.curves[i]],
+        })
+    reactions: dict[int, list[float]] = {}
+    for node, rx, rz in design.reactions:
+        r = reactions.setdefault(int(node), [0.0, 0.0])
+        r[0] += float(rx)
+        r[1] += float(rz)
+    loads = [{"node": i, "x": float(design.nodes[i, 0]), "z": float(design.nodes[i, 1]),
+              "fx": float(fx), "fz": float(fz)}
+             for i, (fx, fz) in enumerate(design.loads) if fx != 0 or fz != 0]
+    n_t = int((m.sense == "tension").sum())
+    stats = dict(design.stats)
+    stats.update({"members": len(m), "tension_members": n_t,
+                  "compression_members": len(m) - n_t, "nodes": len(design.nodes),
+                  "equilibrium_error": design.equilibrium_error})
+    if wall_seconds is not None:
+        stats["wall_seconds"] = wall_seconds
+    if isinstance(scenario, Scenario):
+        inputs = scenario.to_dict()
+        name, kind, source = scenario.name, scenario.kind, scenario.source
+    else:
+        inputs = _problem_dict(problem) if problem is not None else {}
+        name = getattr(problem, "name", "layout problem")
+        kind, source = "layout", None
+        inputs = {"name": name, **inputs}
+    bridge = getattr(scenario, "bridge", None)
+    out = {
+        "bridgeopt_version": _version(), "schema": SCHEMA,
+        "name": name, "kind": kind, "source": source,
+        "status": design.status, "message": design.message,
+        "volume": design.volume, "weight": design.weight,
+        "weight_kN": design.weight / 1e3, "mass_t": design.weight / GRAVITY / 1e3,
+        "model_volume": design.model_volume, "copies": design.copies,
+        "normalised_volume": bridge.normalised_volume(design.volume) if bridge else None,
+        "applied_load": (problem.total_applied_load() * design.copies
+                         if problem is not None else None),
+        "nodes": nodes, "members": members, "loads": loads,
+        "reactions": [{"node": n, "x": float(design.nodes[n, 0]), "z": float(design.nodes[n, 1]),
+                       "rx": r[0], "rz": r[1]} for n, r in sorted(reactions.items())],
+        "stats": stats, "inputs": inputs,
+        "derived": _derived(problem, scenario) if problem is not None else {},
+        "units": UNITS, "cautions": list(CAUTION_LINES), "caution": CAUTIONS,
+    }
+    return _plain(out)
+
+
+def _version() -> str:
+    from . import __version__
+
+    return __version__
+
+
+def to_json(data: dict) -> str:
+    """Strict JSON text of ``data`` (NaN and infinity are refused)."""
+    return json.dumps(_plain(data), indent=1, allow_nan=False) + "\n"
+
+
+def write_json(path: str | os.PathLike, data: dict) -> Path:
+    """Write ``data`` as JSON to ``path`` atomically (temporary file, then rename).
+
+    A reader never sees a half-written file; on failure the old file, if any,
+    is left as it was.
+    """
+    path = Path(path)
+    text = to_json(data)
+    fd, tmp = tempfile.mkstemp(dir=path.parent if str(path.parent) else ".",
+                               prefix=f".{path.name}.", suffix=".json.tmp")
+    try:
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes the file private; use the usual mode
+        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+            fh.write(text)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+    return path
