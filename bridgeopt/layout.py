@@ -10,6 +10,7 @@ as optimal far from the optimum.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
@@ -100,7 +101,6 @@ def _coarse_duals(problem: Problem, grid: Grid) -> np.ndarray | None:
     The coarse problem has the same domain and loads, hence the same reference
     length, force and stress, so its dimensionless duals compare directly.
     """
-    import dataclasses
     from scipy.interpolate import LinearNDInterpolator, NearestNDInterpolator
 
     coarse = dataclasses.replace(problem, spacing=2 * problem.spacing)
@@ -242,7 +242,7 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
         volume=problem.copies * model_volume, weight=problem.copies * float(weights.sum()),
         nodes=nodes, members=members, loads=loads, reactions=reactions, duals=duals,
         stats={"rounds": sol.rounds, "columns": sol.columns, "candidates": sol.candidates,
-               "seconds": sol.seconds, "grid_nodes": grid.n,
+               "seconds": sol.seconds, "grid_nodes": grid.n, "gap": sol.gap,
                "lp_volume": problem.copies * sol.objective * ref_force * ref_len / ref_sigma},
         copies=problem.copies, model_volume=model_volume,
         equilibrium_error=float(np.abs(resid).max() / ref_force), problem=problem)
