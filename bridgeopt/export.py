@@ -88,7 +88,8 @@ def _derived(problem, scenario) -> dict:
     return out
 
 
-def design_to_dict(design: Design, scenario=None, *, wall_seconds: float | None = None) -> dict:
+def design_to_dict(design: Design, *, scenario: Scenario | None = None,
+                   wall_seconds: float | None = None) -> dict:
     """A JSON-ready dict of ``design`` (SI units; see the module docstring for the keys).
 
     Parameters
@@ -98,7 +99,7 @@ def design_to_dict(design: Design, scenario=None, *, wall_seconds: float | None 
         Adds the inputs in file schema, the name, kind and source; without it the
         inputs come from ``design.problem``.
     wall_seconds : float, optional
-        Total time including reading and checking, recorded in ``stats``.
+        Total time including reading and checking, recorded in ``stats``. [s]
     """
     problem = design.problem
     m = design.members
@@ -167,7 +168,7 @@ def _version() -> str:
 
 def to_json(data: dict) -> str:
     """Strict JSON text of ``data`` (NaN and infinity are refused)."""
-    return json.dumps(_plain(data), indent=1, allow_nan=False) + "\n"
+    return json.dumps(_plain(data), allow_nan=False) + "\n"
 
 
 def write_json(path: str | os.PathLike, data: dict) -> Path:
@@ -181,13 +182,13 @@ def write_json(path: str | os.PathLike, data: dict) -> Path:
     fd, tmp = tempfile.mkstemp(dir=path.parent if str(path.parent) else ".",
                                prefix=f".{path.name}.", suffix=".json.tmp")
     try:
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes the file private; use the usual mode
         with os.fdopen(fd, "w", encoding="utf-8") as fh:
             fh.write(text)
             fh.flush()
             os.fsync(fh.fileno())
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes the file private; use the usual mode
         os.replace(tmp, path)
     except BaseException:
         try:

@@ -27,7 +27,7 @@ from __future__ import annotations
 import difflib
 import math
 import tomllib
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Mapping
 
@@ -209,7 +209,7 @@ def _check_keys(raw: Mapping, kind: str, prefix: str, label: str) -> None:
 def _rename(err: InputError, old: str, new: str) -> InputError:
     """The same error with the field prefix ``old`` replaced by ``new``."""
     f = err.field
-    if f == old or f.startswith(old + ".") or f.startswith(old + "["):
+    if f == old or f.startswith(old + "."):
         f = new + f[len(old):]
     return InputError(f, err.value, err.valid)
 
@@ -494,6 +494,9 @@ def _bridge(data: Mapping, name: str) -> BridgeScenario:
         if err.field != "domain.spacing":
             raise
         most = _largest_divisions(span, rise, depth)
+        if most < 2:
+            raise InputError("bridge.rise", rise, f"a smaller rise + depth for this span (the "
+                             f"half-span grid would exceed {MAX_CELLS} cells)") from None
         raise InputError("bridge.divisions", divisions,
                          f"an even whole number from 2 to {most} for this span, rise and depth "
                          f"(at most {MAX_CELLS} grid cells in the half-span model)") from None
@@ -557,8 +560,6 @@ class Scenario:
 
     def with_solve(self, **changes) -> "Scenario":
         """A copy with some solve options changed (``member_adding=False`` ...)."""
-        from dataclasses import replace
-
         return replace(self, solve=replace(self.solve, **changes))
 
     def to_dict(self) -> dict:
@@ -619,7 +620,7 @@ def _problem_dict(p: Problem) -> dict:
     return out
 
 
-def parse_scenario(data: Mapping, source: str = "<dict>") -> Scenario:
+def parse_scenario(data: Mapping, *, source: str = "<dict>") -> Scenario:
     """Check a scenario given as a dict (as :func:`tomllib.load` returns it).
 
     Parameters
@@ -666,7 +667,7 @@ def load_scenario(path: str | Path) -> Scenario:
     """
     path = Path(path)
     try:
-        text = path.read_bytes().decode("utf-8")
+        text = path.read_bytes().decode("utf-8-sig")  # a byte-order mark is tolerated
     except FileNotFoundError:
         raise InputError("file", str(path), "an existing scenario file (.toml)") from None
     except IsADirectoryError:
