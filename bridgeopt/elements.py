@@ -68,7 +68,7 @@ def curved_coefficients(lx, dz, k: float, sense: str):
         low = high = slope
     else:
         phi = k * lx
-        with np.errstate(invalid="ignore", divide="ignore"):
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             s = np.where(phi < PHI_LIMIT, np.sin(phi), np.nan)
             half = 2.0 * np.sin(0.5 * phi) ** 2          # 1 - cos(phi), no cancellation
             low = (-half - np.expm1(-k * dz)) / s         # (cos phi - exp(-k dz)) / sin phi
@@ -100,8 +100,9 @@ def vertical_coefficients(h, k: float, sense: str):
         ``qzf`` are the vertical end-force factors on P (lower) and Q (upper).
     """
     h = np.asarray(h, dtype=float)
-    grow = np.exp(k * h)
-    cost = h.copy() if k == 0.0 else np.expm1(k * h) / k
+    with np.errstate(over="ignore"):
+        grow = np.exp(k * h)
+        cost = h.copy() if k == 0.0 else np.expm1(k * h) / k
     if sense == "tension":      # hangs from Q: lower end force F, upper F e^{kh}
         return cost, np.ones_like(h), -grow
     if sense == "compression":  # stands on P: upper end force F, lower F e^{kh}

@@ -238,7 +238,9 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
     model_volume = float(volume.sum())
     duals = sol.duals.reshape(-1, 2)[used] * ref_len / ref_sigma
     return Design(
-        status="optimal", message="proven optimum of the layout-optimization LP",
+        status="optimal",
+        message=("proven optimum of the layout-optimization LP" if sol.gap == 0 else
+                 f"optimum of the layout-optimization LP within a proven gap of {sol.gap:.1e}"),
         volume=problem.copies * model_volume, weight=problem.copies * float(weights.sum()),
         nodes=nodes, members=members, loads=loads, reactions=reactions, duals=duals,
         stats={"rounds": sol.rounds, "columns": sol.columns, "candidates": sol.candidates,

@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import numbers
 import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
@@ -100,8 +101,12 @@ def _short(value: object) -> object:
 # ---------------------------------------------------------------- primitive checks
 
 def _is_number(value: object) -> bool:
-    return (isinstance(value, (int, float)) and not isinstance(value, bool)
+    return (isinstance(value, numbers.Real) and not isinstance(value, bool)
             and math.isfinite(value))
+
+
+def _is_whole(value: object) -> bool:
+    return isinstance(value, numbers.Integral) and not isinstance(value, bool)
 
 
 def _number(field: str, value: object, valid: str, ok=lambda v: True) -> float:
@@ -119,7 +124,7 @@ def _string(field: str, value: object, valid: str = "a non-empty text string") -
 
 def _point(field: str, value: object, valid: str = "a pair [x, z] of numbers in m") \
         -> tuple[float, float]:
-    if (not isinstance(value, list) or len(value) != 2
+    if (not isinstance(value, (list, tuple)) or len(value) != 2
             or not all(_is_number(v) for v in value)):
         raise InputError(field, _short(value), valid)
     return (float(value[0]), float(value[1]))
@@ -144,7 +149,7 @@ def _segments_cross(p1, p2, p3, p4) -> bool:
 
 def _polygon(field: str, value: object) -> tuple[tuple[float, float], ...]:
     valid = "a list of at least 3 points [[x, z], ...] in m forming a simple polygon"
-    if not isinstance(value, list) or len(value) < 3:
+    if not isinstance(value, (list, tuple)) or len(value) < 3:
         raise InputError(field, _short(value), valid)
     pts = tuple(_point(f"{field}[{i}]", p) for i, p in enumerate(value))
     if pts[0] == pts[-1]:
@@ -169,7 +174,7 @@ def _polygon(field: str, value: object) -> tuple[tuple[float, float], ...]:
 
 
 def _table(field: str, value: object, what: str) -> dict:
-    if not isinstance(value, dict):
+    if not isinstance(value, Mapping):
         raise InputError(field, _short(value), what)
     return value
 
@@ -178,7 +183,7 @@ def _tables(field: str, value: object) -> list[dict]:
     """An array of tables ``[[field]]`` (absent -> empty)."""
     if value is None:
         return []
-    if not isinstance(value, list) or not all(isinstance(v, dict) for v in value):
+    if not isinstance(value, (list, tuple)) or not all(isinstance(v, Mapping) for v in value):
         raise InputError(field, _short(value),
                          f"an array of tables, written [[{field}]] once per entry")
     return value
@@ -301,11 +306,10 @@ def _solve_options(data: Mapping) -> "SolveOptions":
     if not isinstance(member_adding, bool):
         raise InputError("solve.member_adding", _short(member_adding), "true or false")
     batch = raw.get("batch")
-    if batch is not None and (isinstance(batch, bool) or not isinstance(batch, int)
-                              or not 1 <= batch <= _MAX_BATCH):
+    if batch is not None and (not _is_whole(batch) or not 1 <= batch <= _MAX_BATCH):
         raise InputError("solve.batch", _short(batch),
                          f"a whole number from 1 to {_MAX_BATCH} (members added per round)")
-    return SolveOptions(member_adding=member_adding, batch=batch)
+    return SolveOptions(member_adding=member_adding, batch=None if batch is None else int(batch))
 
 
 def _name(data: Mapping, default: str) -> str:
@@ -480,10 +484,10 @@ def _bridge(data: Mapping, name: str) -> BridgeScenario:
         raise InputError("bridge.arrangement", _short(arrangement),
                          "one of " + ", ".join(map(repr, ARRANGEMENTS)))
     divisions = raw.get("divisions", 30)
-    if (isinstance(divisions, bool) or not isinstance(divisions, int) or divisions < 2
-            or divisions > 240 or divisions % 2):
+    if not _is_whole(divisions) or divisions < 2 or divisions > 240 or divisions % 2:
         raise InputError("bridge.divisions", _short(divisions),
                          "an even whole number from 2 to 240")
+    divisions = int(divisions)
     material, comp = _materials(data)
     bridge = BridgeScenario(span=span, rise=rise, depth=depth, deck_load=deck_load,
                             material=material, arrangement=arrangement, divisions=divisions,
