@@ -1,0 +1,6 @@
+"""Test configuration: make ``tests/helpers.py`` importable as ``helpers``."""
+
+import os
+import sys
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
