@@ -118,6 +118,16 @@ def _end_slope(p, q, k: float, sense: str) -> float:
     return float(pzf[0]) if sense == "tension" else float(-pzf[0])
 
 
+def _rise_along(theta: float, x, kappa: float):
+    """z(x) - zP of a curve whose slope angle turns from theta at rate kappa.
+
+    z = ln(cos theta / cos(theta + kappa x)) / kappa, written with log1p and
+    sin^2(t/2) so that it stays accurate for small kappa x.
+    """
+    t = kappa * np.asarray(x, dtype=float)
+    return -np.log1p(-2.0 * np.sin(0.5 * t) ** 2 - np.tan(theta) * np.sin(t)) / kappa
+
+
 def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
     """Points along an element's centreline, shape (n, 2) (2 points if straight).
 
@@ -131,8 +141,7 @@ def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
         return np.vstack([p, q])
     theta = np.arctan(_end_slope(p, q, k, sense))
     x = np.linspace(0.0, lx, n)
-    turn = k * x if sense == "tension" else -k * x
-    z = p[1] + np.log(np.cos(theta) / np.cos(theta + turn)) / (k if sense == "tension" else -k)
+    z = p[1] + _rise_along(theta, x, k if sense == "tension" else -k)
     z[-1] = q[1]
     return np.column_stack([p[0] + x, z])
 
@@ -151,6 +160,5 @@ def sag(p, q, k: float, sense: str) -> float:
     theta = np.arctan(_end_slope(p, q, k, sense))
     chord = np.arctan(dz / lx)
     x = (chord - theta) / k if sense == "tension" else (theta - chord) / k
-    turn = k * x if sense == "tension" else -k * x
-    z = np.log(np.cos(theta) / np.cos(theta + turn)) / (k if sense == "tension" else -k)
+    z = _rise_along(theta, x, k if sense == "tension" else -k)
     return float(abs(z - dz * x / lx))

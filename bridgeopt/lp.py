@@ -305,9 +305,11 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
             cols.add(h, data, start, s)
         rounds += 1
         status = _run(h)
-        if status != "infeasible" or len(start) == n_pairs:
+        if status == "optimal" or len(start) == n_pairs:
             break
-        reach *= 2  # the nearest-neighbour start cannot carry the loads: widen it
+        # the start cannot carry the loads (infeasible), or only with forces so large that
+        # HiGHS gives up (status unknown): widen it
+        reach *= 2
     while status == "optimal" and member_adding and rounds < MAX_ROUNDS:
         u = np.asarray(h.getSolution().row_dual)
         found = _price(data, cols, u, n_pairs)

@@ -101,7 +101,7 @@ def assert_equilibrium(design, rtol: float = 1e-8) -> None:
 def assert_optimal_design(design, rtol: float = 1e-7) -> None:
     """Internal consistency and an LP optimality certificate of ``design``.
 
-    * status "optimal", positive finite volume, volume = copies x model volume =
+    * status "optimal" with no optimality gap, positive finite volume, volume = copies x model volume =
       copies x sum of member volumes, weight = copies x sum rho g V;
     * forces >= 0 in their sense: a tension member pulls each end node towards
       the other end, a compression member pushes it away;
@@ -113,6 +113,8 @@ def assert_optimal_design(design, rtol: float = 1e-7) -> None:
       directions vanish (a reaction costs nothing).
     """
     assert design.status == "optimal"
+    # a proven optimum, not one within an optimality gap (validation compares optima)
+    assert design.stats.get("gap", 0.0) == 0.0, f"only within a gap: {design.message}"
     assert np.isfinite(design.volume) and design.volume > 0
     m = design.members
     assert len(m) > 0
