@@ -11,9 +11,8 @@ intensity is positive downwards (gravity).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
-import numpy as np
 
 from .errors import InputError
 from .materials import Material
@@ -234,10 +233,6 @@ class Problem:
                 raise InputError(f"symmetry[{i}].x", m, f"a line on the domain, x in [{x0:g}, {x1:g}] m")
 
     @property
-    def tension_material(self) -> Material:
-        return self.material
-
-    @property
     def compression(self) -> Material:
         """Material of the compression elements."""
         return self.compression_material or self.material
@@ -273,7 +268,3 @@ class Problem:
         nz = max(1, round((z1 - z0) / self.spacing))
         return nx, nz
 
-
-def as_array(points) -> np.ndarray:
-    """Points as an (n, 2) float array (a copy)."""
-    return np.array(points, dtype=float).reshape(-1, 2)

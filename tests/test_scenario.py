@@ -315,19 +315,6 @@ BAD_LAYOUT = [
 ]
 
 
-@pytest.mark.parametrize("key,value,expect", BAD_LAYOUT, ids=lambda v: str(v)[:30])
-def test_bad_layout_values_name_the_key(key, value, expect):
-    d = layout_dict()
-    _set(d, key, value)
-    with pytest.raises(InputError) as info:
-        parse_scenario(d)
-    msg = str(info.value)
-    assert info.value.field == key
-    assert msg.startswith(f"{key} = ")
-    assert expect in msg
-    assert "\n" not in msg
-
-
 BAD_BRIDGE = [
     ("bridge.span", "abc", "a number > 0 m"),
     ("bridge.span", -600.0, "a number > 0 m"),
@@ -346,14 +333,20 @@ BAD_BRIDGE = [
 ]
 
 
-@pytest.mark.parametrize("key,value,expect", BAD_BRIDGE, ids=lambda v: str(v)[:30])
-def test_bad_bridge_values_name_the_key(key, value, expect):
-    d = bridge_dict()
+@pytest.mark.parametrize("build,key,value,expect",
+                         [(layout_dict, *case) for case in BAD_LAYOUT]
+                         + [(bridge_dict, *case) for case in BAD_BRIDGE],
+                         ids=lambda v: getattr(v, "__name__", str(v))[:30])
+def test_bad_values_name_the_key(build, key, value, expect):
+    d = build()
     _set(d, key, value)
     with pytest.raises(InputError) as info:
         parse_scenario(d)
+    msg = str(info.value)
     assert info.value.field == key
-    assert expect in str(info.value)
+    assert msg.startswith(f"{key} = ")
+    assert expect in msg
+    assert "\n" not in msg
 
 
 def test_wrong_type_message_is_exactly_one_clear_line():
