@@ -23,7 +23,7 @@ from .lp import LPData, LPSolution, column_entries, solve_lp
 from .materials import GRAVITY
 from .problem import Problem
 
-__all__ = ["optimize_layout", "nodal_loads", "restrained_rows", "design_from_lp"]
+__all__ = ["optimize_layout", "nodal_loads", "restrained_rows", "design_from_lp", "scales"]
 
 
 def nodal_loads(problem: Problem, grid: Grid) -> np.ndarray:
@@ -119,7 +119,7 @@ def _coarse_duals(problem: Problem, grid: Grid) -> np.ndarray | None:
     return out.ravel()
 
 
-def _scales(problem: Problem) -> tuple[float, float, float]:
+def scales(problem: Problem) -> tuple[float, float, float]:
     """Reference length [m], force [N] and stress [Pa] of the dimensionless LP."""
     x0, x1, z0, z1 = problem.domain.bounds
     return max(x1 - x0, z1 - z0), problem.total_applied_load(), problem.strength("tension")
@@ -131,7 +131,7 @@ def _solve(problem: Problem, *, member_adding: bool, batch: int | None, coarse_s
     f = nodal_loads(problem, grid)
     fixed = restrained_rows(problem, grid)
     a, b = candidate_pairs(problem, grid)
-    ref_len, ref_force, ref_sigma = _scales(problem)
+    ref_len, ref_force, ref_sigma = scales(problem)
     origin = np.array(grid.origin)
     data = LPData(
         xz=(grid.xz - origin) / ref_len, a=a, b=b,

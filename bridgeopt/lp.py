@@ -69,6 +69,8 @@ class LPData:
     fixed : int array of restrained equilibrium rows (2*node + 0 for x, + 1 for z).
     reach : int (n_pairs,) lattice reach max(|di|, |dj|) of each pair; member
         adding starts from reach 1 (nearest neighbours).
+    allowed : bool (n_pairs, 2), optional: which senses (tension, compression)
+        each pair may take; both when None.
     """
 
     xz: np.ndarray
@@ -79,6 +81,7 @@ class LPData:
     load: np.ndarray
     fixed: np.ndarray
     reach: np.ndarray
+    allowed: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
@@ -183,6 +186,8 @@ class _Columns:
 
     def add(self, h, data: LPData, pair: np.ndarray, s: int) -> int:
         pair = pair[~self.in_lp[pair, s]]
+        if data.allowed is not None:
+            pair = pair[data.allowed[pair, s]]
         if len(pair) == 0:
             return 0
         cost, rows, vals = column_entries(data, pair, SENSES[s])
@@ -216,7 +221,10 @@ def _price(data: LPData, cols: _Columns, u: np.ndarray, n_pairs: int):
     for start in range(0, n_pairs, PRICE_CHUNK):
         pair = np.arange(start, min(n_pairs, start + PRICE_CHUNK))
         for s, sense in enumerate(SENSES):
-            todo = pair[~cols.in_lp[pair, s]]
+            free = ~cols.in_lp[pair, s]
+            if data.allowed is not None:
+                free &= data.allowed[pair, s]
+            todo = pair[free]
             if len(todo) == 0:
                 continue
             cost, rows, vals = column_entries(data, todo, sense)
