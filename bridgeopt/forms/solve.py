@@ -1,0 +1,446 @@
+"""Solve a bridge form and set it against the reference optimum of the same scenario.
+
+:func:`solve_form` builds the form's fixed topology on the scenario's half-span
+problem (:meth:`~bridgeopt.bridge.BridgeScenario.to_problem`: same domain,
+deck load, materials, mirror lines and copies as the reference), sizes it with
+the layout-optimization LP (:func:`~bridgeopt.frame.size_frame`, equal-strength
+self-weight elements included), improves its free geometry (pylon height, sag,
+rise, or every cable or rib node's height) with
+:func:`~bridgeopt.geometry.optimize_geometry`, and solves the reference optimum
+(:func:`~bridgeopt.layout.optimize_layout`) on the same problem.
+
+Supports, chosen so that the reference stays a fair lower bound: when a form
+needs a support the bridge problem does not have, the reference for that
+comparison is solved with it too (:func:`form_problem`):
+
+* intermediate pylons (``pylons > 1``) stand on piers: a vertical support at the
+  bottom of the domain under each, for the form and the reference alike;
+* a single span's cable-stayed pylon or suspension tower is held horizontally at
+  its top by back stays or the main cable's back span running to an anchorage
+  behind the abutment, outside the modelled domain.  This is modelled as a free
+  horizontal reaction along the whole abutment line x = 0 (as on a mirror line),
+  which the reference gets as well; the anchorage and back stays themselves are
+  not sized, in the form or in the reference.
+
+Heights kept clear: the suspension cable's lowest point and a deck arch's crown
+stay at least :data:`CLEARANCE` of the available height away from the deck, so
+that every hanger and column has a length.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import logging
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..bridge import BridgeScenario
+from ..design import Design
+from ..errors import InputError, SolveError
+from ..frame import Frame, size_frame
+from ..geometry import NodeMoves, optimize_geometry
+from ..layout import optimize_layout
+from ..materials import GRAVITY
+from ..problem import Problem, Support
+from .arch import arch_frame
+from .builder import available_heights, deck_level, funicular_heights
+from .cable_stayed import cable_stayed_frame
+from .specs import ArchForm, CableStayedForm, FormSpec, ReferenceForm, SuspensionForm
+from .suspension import suspension_frame
+
+__all__ = ["FormResult", "form_problem", "build_form", "solve_form", "GROUPS", "CLEARANCE",
+           "START_SPAN_TO_HEIGHT", "START_SAG_RATIO", "START_RISE_RATIO"]
+
+log = logging.getLogger(__name__)
+
+#: Element groups reported for each form, in report order.
+GROUPS = {
+    "reference": ("member",),
+    "cable-stayed": ("stay", "pylon", "deck", "pier"),
+    "suspension": ("cable", "hanger", "tower", "deck", "pier"),
+    "arch": ("arch rib", "hanger", "column", "deck", "pier"),
+}
+#: Least clearance between deck and cable or crown, as a part of the available height. [-]
+CLEARANCE = 0.01
+#: Starting geometry of a free dimension (common practice, from memory): pylon
+#: spacing about 5 times the pylon height above the deck, cable sag about span/10,
+#: arch rise about span/6.
+START_SPAN_TO_HEIGHT = 5.0
+START_SAG_RATIO = 0.1
+START_RISE_RATIO = 1.0 / 6.0
+#: Least free pylon height, sag and rise, as a part of the length they serve. [-]
+LEAST_RATIO = 0.05
+
+
+def _pylon_positions(bridge: BridgeScenario, pylons: int) -> list[float]:
+    step = bridge.span / pylons
+    return [j * step for j in range(pylons) if j * step <= 0.5 * bridge.span * (1 + 1e-12)]
+
+
+def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
+    """The half-span problem on which ``spec`` and its reference are both solved.
+
+    The bridge's own problem, plus the supports the form needs (see the module
+    docstring): piers under intermediate pylons, and the horizontal anchorage of
+    a single span's pylon or tower tops.
+
+    Raises
+    ------
+    InputError
+        Intermediate pylons that do not stand on grid nodes (``form.pylons``
+        must divide ``bridge.divisions``).
+    """
+    problem = bridge.to_problem()
+    extra: list[Support] = []
+    if isinstance(spec, CableStayedForm) and spec.pylons > 1:
+        if bridge.divisions % spec.pylons:
+            raise InputError("form.pylons", spec.pylons,
+                             f"a divisor of bridge.divisions = {bridge.divisions} (each "
+                             "intermediate pylon's pier stands on a grid node)")
+        bottom = problem.domain.bounds[2]
+        extra = [Support((x, bottom), "z") for x in _pylon_positions(bridge, spec.pylons)[1:]]
+    mirrors = problem.mirror_lines
+    if isinstance(spec, (CableStayedForm, SuspensionForm)) and bridge.arrangement == "single":
+        mirrors = (0.0,) + tuple(mirrors)
+    if extra or mirrors != problem.mirror_lines:
+        problem = dataclasses.replace(problem, supports=problem.supports + tuple(extra),
+                                      mirror_lines=mirrors)
+    return problem
+
+
+def _panels(bridge: BridgeScenario, spacing: float | None) -> int:
+    half = 0.5 * bridge.span
+    if spacing is None:
+        return bridge.divisions // 2
+    n = max(1, round(half / spacing))
+    if n > 200:
+        raise InputError("form.spacing", spacing, f">= {half / 200:.6g} m (at most 200 panels "
+                         "in the half span)")
+    return n
+
+
+def _free(start: float, low: float, high: float, field: str, value, what: str):
+    """(start, bounds) of a free dimension; InputError when the domain is too small."""
+    if high <= low:
+        raise InputError(field, value, f"a scenario with room for {what} (needs more than "
+                         f"{low:.6g} m, the design domain gives {high:.6g} m)")
+    return min(max(start, low), high), (low, high)
+
+
+def _shaped(make, shape: str, problem: Problem, x: np.ndarray, start: float, end: float,
+            line_sense: str, drop_sense: str):
+    """The frame of ``make(profile)``.  For a funicular or free shape the profile is the
+    exactly funicular polygon of the form's own loads (deck load, hanger or column and
+    line self-weight); a parabola when none is found (the LP then reports the trouble)."""
+    if shape == "parabolic":
+        return make(None)
+    q = problem.line_loads[0].intensity
+    loads = q * np.diff(x)
+    loads[-1] *= 0.5                        # the mirror node's share of the half model
+    loads[:-1] = 0.5 * (loads[:-1] + q * np.diff(x)[1:])
+    z = funicular_heights(x, start=start, end=end, node_loads=loads,
+                          k_line=problem.k(line_sense), line_sense=line_sense,
+                          k_drop=problem.k(drop_sense), drop_base=deck_level(problem)[2])
+    return make(None if z is None else (z - start) / (end - start))
+
+
+def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None = None, *,
+               free_start: float | None = None) -> tuple[Frame, NodeMoves | None]:
+    """The starting frame of ``spec`` and its free geometry on the form's problem.
+
+    ``free_start`` sets the starting pylon height, sag or rise [m] when that
+    dimension is free (default: :data:`START_SPAN_TO_HEIGHT`,
+    :data:`START_SAG_RATIO`, :data:`START_RISE_RATIO`; clipped to the bounds).
+
+    Raises
+    ------
+    InputError
+        The form does not fit in the design domain (a key named in the message).
+    """
+    problem = form_problem(bridge, spec) if problem is None else problem
+    rise, depth = available_heights(problem)
+    xs, xe, zd = deck_level(problem)
+    span = bridge.span
+    if isinstance(spec, CableStayedForm):
+        reach = 0.5 * span / spec.pylons
+        if spec.span_to_height is not None:
+            h = 2 * reach / spec.span_to_height
+            if h > rise * (1 + 1e-9):
+                raise InputError("form.span_to_height", spec.span_to_height,
+                                 f">= {2 * reach / rise:.6g} (the pylon, {h:.6g} m above the "
+                                 f"deck, must fit within the rise of {rise:.6g} m)")
+            bounds = None
+        else:
+            h, bounds = _free(free_start or 2 * reach / START_SPAN_TO_HEIGHT, LEAST_RATIO * reach, rise,
+                              "bridge.rise", bridge.rise, "a pylon above the deck")
+        return cable_stayed_frame(problem, pylons_x=_pylon_positions(bridge, spec.pylons),
+                                  reach=reach, pattern=spec.pattern, stays=spec.stays,
+                                  height=h, anchor_zone=spec.anchor_zone, height_bounds=bounds)
+    if isinstance(spec, SuspensionForm):
+        tower = rise if spec.tower_height is None else spec.tower_height
+        if tower > rise * (1 + 1e-9) or tower <= 0:
+            raise InputError("form.tower_height", spec.tower_height,
+                             f"a height in (0, {rise:.6g}] m (the towers must fit within the "
+                             "rise of the design domain)")
+        most = tower * (1 - CLEARANCE)
+        sag_bounds = height_bounds = None
+        if spec.sag_ratio is not None:
+            sag = spec.sag_ratio * span
+            if sag > most:
+                raise InputError("form.sag_ratio", spec.sag_ratio,
+                                 f"<= {most / span:.6g} (the cable's lowest point must stay above "
+                                 f"the deck under towers {tower:.6g} m high)")
+        else:
+            sag, sag_bounds = _free(free_start or START_SAG_RATIO * span, LEAST_RATIO * 0.5 * span, most,
+                                    "bridge.rise", bridge.rise, "a cable sag")
+        if spec.shape == "free":
+            height_bounds = (CLEARANCE * tower, rise)
+        n = _panels(bridge, spec.spacing)
+
+        def make(profile):
+            return suspension_frame(problem, panels=n, tower=tower, sag=sag, shape=spec.shape,
+                                    profile=profile, sag_bounds=sag_bounds,
+                                    height_bounds=height_bounds)
+        x = xs + (xe - xs) * np.arange(n + 1) / n
+        return _shaped(make, spec.shape, problem, x, zd + tower, zd + tower - sag, "tension",
+                       "tension")
+    if isinstance(spec, ArchForm):
+        through = spec.variant == "through-arch"
+        room = rise if through else depth * (1 - CLEARANCE)
+        field, value = ("bridge.rise", bridge.rise) if through else ("bridge.depth", bridge.depth)
+        if room <= 0:
+            raise InputError("form.variant", spec.variant,
+                             f"{'deck-arch' if through else 'through-arch'} here ({field} "
+                             f"= {value:g} m leaves no room for a "
+                             f"{'through arch above' if through else 'deck arch below'} the deck)")
+        springing = zd if through else zd - depth
+        rise_bounds = height_bounds = None
+        if spec.rise_ratio is not None:
+            f = spec.rise_ratio * span
+            if f > room * (1 + 1e-9):
+                raise InputError("form.rise_ratio", spec.rise_ratio,
+                                 f"<= {room / span:.6g} (the arch must fit within "
+                                 f"{field} = {value:g} m)")
+        else:
+            f, rise_bounds = _free(free_start or START_RISE_RATIO * span, LEAST_RATIO * 0.5 * span, room,
+                                   field, value, "an arch")
+        if spec.shape == "free":
+            height_bounds = ((zd + CLEARANCE * rise, zd + rise) if through
+                             else (springing, springing + room))
+        n = _panels(bridge, spec.spacing)
+
+        def make(profile):
+            return arch_frame(problem, panels=n, variant=spec.variant, springing=springing,
+                              rise=f, shape=spec.shape, profile=profile,
+                              rise_bounds=rise_bounds, height_bounds=height_bounds)
+        x = xs + (xe - xs) * np.arange(n + 1) / n
+        return _shaped(make, spec.shape, problem, x, springing, springing + f, "compression",
+                       "tension" if through else "compression")
+    raise InputError("form.type", getattr(spec, "type", spec),
+                     "'cable-stayed', 'suspension' or 'arch' (the reference has no frame)")
+
+
+def group_quantities(design: Design, groups=()) -> dict:
+    """Members, volume, weight and largest force per element group, for the whole structure.
+
+    Returns
+    -------
+    dict
+        ``{group: {"members": int, "volume_m3": float, "weight_N": float,
+        "largest_force_N": float}}``, every group of ``groups`` first (zero when
+        it carries nothing), then any other group present.  Volumes and weights
+        count ``design.copies`` copies of the model; member counts are per model.
+    """
+    m = design.members
+    prob = design.problem
+    density = np.where(m.sense == "tension", prob.material.density, prob.compression.density)
+    force = m.axial_force
+    out = {}
+    for g in list(groups) + [g for g in dict.fromkeys(m.group.tolist()) if g not in groups]:
+        sel = m.group == g
+        vol = float(m.volume[sel].sum()) * design.copies
+        out[g] = {"members": int(sel.sum()), "volume_m3": vol,
+                  "weight_N": float((density[sel] * m.volume[sel]).sum()) * GRAVITY
+                  * design.copies,
+                  "largest_force_N": float(force[sel].max()) if sel.any() else 0.0}
+    return out
+
+
+def _geometry(design: Design, form_type: str, deck_z: float) -> dict:
+    """The form's main dimensions, measured on the (optimized) design. [m]"""
+    m, xz = design.members, design.nodes
+
+    def ends(group):
+        sel = m.group == group
+        return xz[np.concatenate([m.start[sel], m.end[sel]])]
+
+    out = {}
+    if form_type == "cable-stayed" and (m.group == "pylon").any():
+        out["pylon_height"] = float(ends("pylon")[:, 1].max() - deck_z)
+    if form_type == "suspension" and (m.group == "cable").any():
+        z = ends("cable")[:, 1]
+        out["tower_height"] = float(z.max() - deck_z)
+        out["sag"] = float(z.max() - z.min())
+    if form_type == "arch" and (m.group == "arch rib").any():
+        z = ends("arch rib")[:, 1]
+        out["rise"] = float(z.max() - z.min())
+    return out
+
+
+@dataclass(frozen=True)
+class FormResult:
+    """A solved bridge form set against the reference optimum of the same scenario.
+
+    Attributes
+    ----------
+    spec : FormSpec
+    design : Design
+        The form, sized by the LP on its (optimized) geometry.
+    start_volume : float
+        Volume of the form on its starting geometry. [m3]
+    volume : float
+        Volume of the form (whole span). [m3]
+    weight : float
+        Self-weight of the form (whole span). [N]
+    reference : Design
+        The reference optimum (layout optimization) on the same problem.
+    reference_volume : float [m3]
+    ratio : float
+        volume / reference_volume. [-]
+    quantities : dict
+        Per element group (see :func:`group_quantities`).
+    geometry : dict
+        Main dimensions of the final form: ``pylon_height``, ``tower_height``,
+        ``sag`` or ``rise``. [m]
+    """
+
+    spec: FormSpec
+    design: Design
+    start_volume: float
+    volume: float
+    weight: float
+    reference: Design
+    reference_volume: float
+    ratio: float
+    quantities: dict
+    geometry: dict
+
+    @property
+    def form_type(self) -> str:
+        return self.spec.type
+
+    def to_frame(self):
+        """Quantities per element group as a :class:`pandas.DataFrame` (SI units in the names)."""
+        import pandas as pd
+
+        df = pd.DataFrame.from_dict(self.quantities, orient="index")
+        df.index.name = "group"
+        return df
+
+    def summary(self) -> str:
+        """A few lines for the engineer (without the cautions, which the caller adds)."""
+        lines = [f"{self.form_type} form: volume {self.volume:.6g} m3 (start {self.start_volume:.6g}"
+                 f" m3), weight {self.weight:.6g} N; reference optimum {self.reference_volume:.6g}"
+                 f" m3; ratio {self.ratio:.4f}"]
+        for g, q in self.quantities.items():
+            lines.append(f"  {g}: {q['members']} members, {q['volume_m3']:.6g} m3")
+        return "\n".join(lines)
+
+
+#: Most re-shaping rounds of a funicular form with a free sag or rise.
+RESHAPE_ROUNDS = 4
+
+
+def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
+    """The form after geometry optimization, never heavier than ``start``.
+
+    A funicular cable or rib with a free sag or rise is moved as a whole (one
+    parameter), which leaves it slightly off the funicular of its new loads; it
+    is then re-shaped to the exact funicular at the new sag or rise and moved
+    again, for up to :data:`RESHAPE_ROUNDS` rounds.
+    """
+    best = start
+    reshape = getattr(spec, "shape", None) == "funicular"
+    key = "sag" if isinstance(spec, SuspensionForm) else "rise"
+    last = None
+    for _ in range(RESHAPE_ROUNDS if reshape else 1):
+        try:
+            design = optimize_geometry(frame, moves=moves)
+        except SolveError as err:  # keep the best geometry found so far
+            log.warning("geometry optimization of the %s form stopped: %s", spec.type, err)
+            break
+        if design.volume < best.volume:
+            best = design
+        if not reshape:
+            break
+        value = _geometry(design, spec.type, deck_level(problem)[2]).get(key)
+        if value is None or (last is not None and abs(value - last) <= 1e-6 * bridge.span):
+            break
+        last = value
+        frame, moves = build_form(bridge, spec, problem, free_start=value)
+        again = size_frame(frame)
+        if again.volume < best.volume:
+            best = again
+    return best
+
+
+def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
+               reference: Design | None = None, member_adding: bool = True) -> FormResult:
+    """Solve the form ``spec`` of ``bridge`` and its reference optimum.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+    spec : ReferenceForm, CableStayedForm, SuspensionForm or ArchForm
+    optimize : bool
+        Improve the form's free geometry (pylon height, sag, rise ...); without
+        it the form keeps its starting geometry.
+    reference : Design, optional
+        An already solved reference on :func:`form_problem` (saves a solve when
+        comparing several forms that share it).
+    member_adding : bool
+        How the reference is solved (same optimum either way).
+
+    Returns
+    -------
+    FormResult
+
+    Raises
+    ------
+    InputError
+        The form does not fit in the design domain.
+    SolveError
+        The form cannot carry the loads, notably when an element's horizontal
+        reach reaches pi*sigma/(rho*g), beyond which no equal-strength element
+        can carry its own weight.
+
+    References
+    ----------
+    .. [1] W.S. Dorn, R.E. Gomory, H.J. Greenberg (1964), J. de Mecanique 3:25-52.
+    .. [2] H.E. Fairclough, M. Gilbert, A.V. Pichugin, A. Tyas, I. Firth (2018),
+       Proc. R. Soc. A 474:20170726 (equal-strength elements; optimal long-span forms).
+    .. [3] L. He, M. Gilbert (2015), Struct. Multidisc. Optim. 52:677-694 (geometry
+       optimization).
+    """
+    problem = form_problem(bridge, spec)
+    if isinstance(spec, ReferenceForm):
+        ref = reference or optimize_layout(problem, member_adding=member_adding)
+        return FormResult(spec=spec, design=ref, start_volume=ref.volume, volume=ref.volume,
+                          weight=ref.weight, reference=ref, reference_volume=ref.volume,
+                          ratio=1.0, quantities=group_quantities(ref, GROUPS["reference"]),
+                          geometry={})
+    frame, moves = build_form(bridge, spec, problem)
+    start = size_frame(frame)
+    design = start
+    if optimize and moves is not None and moves.size:
+        design = _optimized(bridge, spec, problem, frame, moves, start)
+    ref = reference or optimize_layout(problem, member_adding=member_adding)
+    if not math.isfinite(ref.volume) or ref.volume <= 0:
+        raise SolveError("solver", "the reference optimum has no volume to compare with")
+    return FormResult(spec=spec, design=design, start_volume=start.volume, volume=design.volume,
+                      weight=design.weight, reference=ref, reference_volume=ref.volume,
+                      ratio=design.volume / ref.volume,
+                      quantities=group_quantities(design, GROUPS[spec.type]),
+                      geometry=_geometry(design, spec.type, deck_level(problem)[2]))
