@@ -98,6 +98,8 @@ class FrameBuilder:
             self.member(self.node(x, s.at[1]), top, "compression", "pier")
 
     def build(self) -> tuple[Frame, NodeMoves | None]:
+        for s in self.problem.supports:   # size_frame looks every support up among the nodes
+            self.node(*s.at)
         nodes = np.array(self.nodes, dtype=float)
         a, b, senses, group = (np.array(v) for v in zip(*self.members))
         frame = Frame(problem=self.problem, nodes=nodes, start=a.astype(np.int64),

@@ -33,6 +33,7 @@ import dataclasses
 import logging
 import math
 from dataclasses import dataclass
+from typing import Mapping
 
 import numpy as np
 
@@ -147,12 +148,14 @@ def _shaped(make, shape: str, problem: Problem, x: np.ndarray, start: float, end
 
 
 def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None = None, *,
-               free_start: float | None = None) -> tuple[Frame, NodeMoves | None]:
+               start: Mapping[str, float] | None = None) -> tuple[Frame, NodeMoves | None]:
     """The starting frame of ``spec`` and its free geometry on the form's problem.
 
-    ``free_start`` sets the starting pylon height, sag or rise [m] when that
-    dimension is free (default: :data:`START_SPAN_TO_HEIGHT`,
-    :data:`START_SAG_RATIO`, :data:`START_RISE_RATIO`; clipped to the bounds).
+    ``start`` sets the starting value of free dimensions, by the names of
+    :attr:`FormResult.geometry` (``pylon_height``, ``sag``, ``tower_height``,
+    ``rise``) [m]; the defaults are :data:`START_SPAN_TO_HEIGHT`,
+    :data:`START_SAG_RATIO`, :data:`START_RISE_RATIO` and towers as high as the
+    domain allows; values are clipped to the bounds.
 
     Raises
     ------
@@ -160,6 +163,7 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
         The form does not fit in the design domain (a key named in the message).
     """
     problem = form_problem(bridge, spec) if problem is None else problem
+    start = dict(start or {})
     rise, depth = available_heights(problem)
     xs, xe, zd = deck_level(problem)
     span = bridge.span
@@ -173,36 +177,48 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                                  f"deck, must fit within the rise of {rise:.6g} m)")
             bounds = None
         else:
-            h, bounds = _free(free_start or 2 * reach / START_SPAN_TO_HEIGHT, LEAST_RATIO * reach, rise,
+            h, bounds = _free(start.get("pylon_height", 2 * reach / START_SPAN_TO_HEIGHT), LEAST_RATIO * reach, rise,
                               "bridge.rise", bridge.rise, "a pylon above the deck")
         return cable_stayed_frame(problem, pylons_x=_pylon_positions(bridge, spec.pylons),
                                   reach=reach, pattern=spec.pattern, stays=spec.stays,
                                   height=h, anchor_zone=spec.anchor_zone, height_bounds=bounds)
     if isinstance(spec, SuspensionForm):
-        tower = rise if spec.tower_height is None else spec.tower_height
-        if tower > rise * (1 + 1e-9) or tower <= 0:
-            raise InputError("form.tower_height", spec.tower_height,
-                             f"a height in (0, {rise:.6g}] m (the towers must fit within the "
-                             "rise of the design domain)")
-        most = tower * (1 - CLEARANCE)
-        sag_bounds = height_bounds = None
+        least = CLEARANCE * rise
+        tower_bounds = sag_bounds = height_bounds = None
         if spec.sag_ratio is not None:
             sag = spec.sag_ratio * span
-            if sag > most:
-                raise InputError("form.sag_ratio", spec.sag_ratio,
-                                 f"<= {most / span:.6g} (the cable's lowest point must stay above "
-                                 f"the deck under towers {tower:.6g} m high)")
-        else:
-            sag, sag_bounds = _free(free_start or START_SAG_RATIO * span, LEAST_RATIO * 0.5 * span, most,
+        if spec.tower_height is not None:
+            tower = spec.tower_height
+            if not least < tower <= rise * (1 + 1e-9):
+                raise InputError("form.tower_height", tower,
+                                 f"a height in ({least:.6g}, {rise:.6g}] m (the towers must fit "
+                                 "within the rise of the design domain)")
+        if spec.sag_ratio is not None and spec.sag_ratio * span > \
+                (rise if spec.tower_height is None else tower) - least:
+            top = rise if spec.tower_height is None else tower
+            raise InputError("form.sag_ratio", spec.sag_ratio,
+                             f"<= {(top - least) / span:.6g} (the cable's lowest point must stay "
+                             f"above the deck under towers at most {top:.6g} m high)")
+        if spec.sag_ratio is None:
+            top = rise if spec.tower_height is None else tower
+            sag, sag_bounds = _free(start.get("sag", START_SAG_RATIO * span),
+                                    LEAST_RATIO * 0.5 * span, top - least,
                                     "bridge.rise", bridge.rise, "a cable sag")
+        if spec.tower_height is None:
+            # the tower height is free: the starting cable hangs from the top of the domain
+            tower, _ = _free(start.get("tower_height", rise), sag + least, rise,
+                             "bridge.rise", bridge.rise, "towers")
+            tower_bounds = (sag + least, rise)  # moves the whole cable (its clearance)
+            if spec.shape == "free":
+                tower_bounds = (least, rise)
         if spec.shape == "free":
-            height_bounds = (CLEARANCE * tower, rise)
+            height_bounds = (least, rise)
         n = _panels(bridge, spec.spacing)
 
         def make(profile):
             return suspension_frame(problem, panels=n, tower=tower, sag=sag, shape=spec.shape,
                                     profile=profile, sag_bounds=sag_bounds,
-                                    height_bounds=height_bounds)
+                                    tower_bounds=tower_bounds, height_bounds=height_bounds)
         x = xs + (xe - xs) * np.arange(n + 1) / n
         return _shaped(make, spec.shape, problem, x, zd + tower, zd + tower - sag, "tension",
                        "tension")
@@ -224,7 +240,7 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                                  f"<= {room / span:.6g} (the arch must fit within "
                                  f"{field} = {value:g} m)")
         else:
-            f, rise_bounds = _free(free_start or START_RISE_RATIO * span, LEAST_RATIO * 0.5 * span, room,
+            f, rise_bounds = _free(start.get("rise", START_RISE_RATIO * span), LEAST_RATIO * 0.5 * span, room,
                                    field, value, "an arch")
         if spec.shape == "free":
             height_bounds = ((zd + CLEARANCE * rise, zd + rise) if through
@@ -363,7 +379,6 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
     """
     best = start
     reshape = getattr(spec, "shape", None) == "funicular"
-    key = "sag" if isinstance(spec, SuspensionForm) else "rise"
     last = None
     for _ in range(RESHAPE_ROUNDS if reshape else 1):
         try:
@@ -375,11 +390,12 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
             best = design
         if not reshape:
             break
-        value = _geometry(design, spec.type, deck_level(problem)[2]).get(key)
-        if value is None or (last is not None and abs(value - last) <= 1e-6 * bridge.span):
+        value = _geometry(design, spec.type, deck_level(problem)[2])
+        if not value or (last is not None and max(abs(value[k] - last[k]) for k in value)
+                         <= 1e-6 * bridge.span):
             break
         last = value
-        frame, moves = build_form(bridge, spec, problem, free_start=value)
+        frame, moves = build_form(bridge, spec, problem, start=value)
         again = size_frame(frame)
         if again.volume < best.volume:
             best = again

@@ -28,6 +28,7 @@ def parabola(t) -> np.ndarray:
 
 def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: str = "parabolic",
                      profile=None, sag_bounds: tuple[float, float] | None = None,
+                     tower_bounds: tuple[float, float] | None = None,
                      height_bounds: tuple[float, float] | None = None):
     """Frame (and free sag or cable heights, if any) of a suspension form on ``problem``.
 
@@ -47,6 +48,11 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
         mid-span (default: the parabola 2t - t^2). [-]
     sag_bounds : (float, float), optional
         Parabolic shape: least and largest sag when the sag is free. [m]
+    tower_bounds : (float, float), optional
+        Least and largest tower height when it is free.  With a parabolic or
+        funicular cable this parameter lifts the whole cable (the cable's
+        clearance above the deck at mid-span, tower - sag); with a free shape
+        it moves the tower top only. [m]
     height_bounds : (float, float), optional
         Free shape: least and largest height of a cable node above the deck. [m]
         The mid-span node moves only when ``sag_bounds`` is also given.
@@ -70,10 +76,20 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
         b.member(b.node(xi, zd), node, "tension", "hanger")
     b.chain(cable, "tension", "cable")
     b.deck()
-    if shape != "free" and sag_bounds is not None:
-        b.parameter("sag", sag_bounds[0] - sag, sag_bounds[1] - sag,
-                    {(n, 1): -s for n, s in zip(cable[1:], shape_t[1:])})
-    elif shape == "free" and height_bounds is not None:
+    if shape != "free":
+        if sag_bounds is not None:
+            # with a free tower the sag parameter keeps the mid-span clearance and lifts the
+            # tower top; with a fixed tower it lowers the cable
+            lift = 1.0 if tower_bounds is not None else 0.0
+            b.parameter("sag", sag_bounds[0] - sag, sag_bounds[1] - sag,
+                        {(n, 1): lift - s for n, s in zip(cable, shape_t)})
+        if tower_bounds is not None:
+            b.parameter("cable clearance", tower_bounds[0] - tower, tower_bounds[1] - tower,
+                        {(n, 1): 1.0 for n in cable})
+    elif height_bounds is not None:
+        if tower_bounds is not None:
+            b.parameter("tower height", tower_bounds[0] - tower, tower_bounds[1] - tower,
+                        {(cable[0], 1): 1.0})
         last = len(cable) if sag_bounds is not None else len(cable) - 1
         for j in range(1, last):
             h = cable_z[j] - zd
