@@ -36,6 +36,7 @@ from .cautions import CAUTIONS
 from .design import Design
 from .errors import BridgeoptError, InputError, SolveError
 from .export import design_to_dict, write_json
+from .forms import solve_form
 from .materials import GRAVITY, Material
 from .scenario import Scenario, load_scenario, solve_scenario
 
@@ -131,8 +132,31 @@ def format_inputs(scenario: Scenario) -> list[str]:
     return lines
 
 
-def format_summary(scenario: Scenario, design: Design, wall_seconds: float | None = None) -> str:
-    """The text summary of a solved scenario, ending with the cautions."""
+def format_form(result) -> list[str]:
+    """Lines setting a solved bridge form against the reference optimum."""
+    keys = ", ".join(f"{k} = {v!r}" for k, v in result.spec.to_dict().items() if k != "type")
+    lines = [f"Form: {result.form_type}" + (f" ({keys})" if keys else ""),
+             _row("form volume", f"{_g(result.volume)} m3 (starting geometry "
+                  f"{_g(result.start_volume)} m3)"),
+             _row("reference optimum", f"{_g(result.reference_volume)} m3 (layout optimization, "
+                  "same domain and supports)"),
+             _row("volume ratio", f"{_g(result.ratio, 4)} (form / reference)")]
+    for name, value in result.geometry.items():
+        lines.append(_row(name.replace("_", " "), f"{_g(value)} m"))
+    lines.append("  quantities per element group (whole span):")
+    for group, q in result.quantities.items():
+        lines.append(f"    {group:<10} {q['members']:>4} members  {_g(q['volume_m3']):>12} m3  "
+                     f"{_g(q['weight_N'] / 1e3):>12} kN  largest force {_g(q['largest_force_N'])} N")
+    return lines
+
+
+def format_summary(scenario: Scenario, design: Design, wall_seconds: float | None = None,
+                   form=None) -> str:
+    """The text summary of a solved scenario, ending with the cautions.
+
+    With ``form`` (a :class:`~bridgeopt.forms.FormResult` whose design is
+    ``design``), the form is set against the reference optimum.
+    """
     m = design.members
     n_t = int((m.sense == "tension").sum())
     whole = " (whole span)" if scenario.bridge is not None else (
@@ -168,6 +192,8 @@ def format_summary(scenario: Scenario, design: Design, wall_seconds: float | Non
         lines.append(_row("optimality gap", f"{gap:.1e} (proven bound on how far the volume "
                           "may lie above the optimum)"))
     lines.append(_row("equilibrium error", f"{design.equilibrium_error:.1e} of the applied load"))
+    if form is not None:
+        lines += format_form(form)
     lines.append(CAUTIONS)
     return "\n".join(lines)
 
@@ -211,15 +237,23 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
         scenario = scenario.with_solve(member_adding=False)
     # exp(k h) overflows for members far beyond the self-weight reach; their costs are
     # infinite and the solver drops them, so numpy's overflow warning is only noise here.
+    form = None
     with np.errstate(over="ignore"):
-        design = solve_scenario(scenario)
+        if scenario.form is not None and scenario.form.type != "reference":
+            form = solve_form(scenario.bridge, scenario.form,
+                              optimize=getattr(scenario.solve, "geometry_optimization", True),
+                              member_adding=scenario.solve.member_adding)
+            design = form.design
+        else:
+            design = solve_scenario(scenario)
     wall = time.perf_counter() - t0
     if out is not None:
         try:
-            write_json(out, design_to_dict(design, scenario=scenario, wall_seconds=wall))
+            write_json(out, design_to_dict(design, scenario=scenario, wall_seconds=wall,
+                                           form=form))
         except OSError as err:
             raise InputError("--json", str(out), f"a writable file ({err.strerror})") from None
-    print(format_summary(scenario, design, wall))
+    print(format_summary(scenario, design, wall, form=form))
     if out is not None:
         print(f"JSON written to {out}")
     return EXIT_OK

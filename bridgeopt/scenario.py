@@ -35,6 +35,7 @@ from typing import Any, Mapping
 from .bridge import ARRANGEMENTS, BridgeScenario
 from .design import Design
 from .errors import InputError
+from .forms.specs import FormSpec, parse_form
 from .ground import build_grid
 from .layout import nodal_loads, optimize_layout, restrained_rows
 from .materials import PRESETS, Material
@@ -48,7 +49,7 @@ KEYS: dict[str, tuple[str, ...]] = {
     "layout": ("name", "description", "copies", "domain", "material", "compression_material",
                "support", "load", "line_load", "symmetry", "solve"),
     "bridge-file": ("name", "description", "bridge", "material", "compression_material",
-                    "solve"),
+                    "form", "solve"),
     "domain": ("x", "z", "outline", "spacing", "excluded"),
     "domain.excluded": ("outline",),
     "material": ("preset", "name", "strength", "tension_strength", "compression_strength",
@@ -71,6 +72,7 @@ _HINTS = {
     "supports": "each support is a [[support]] table",
     "loads": "each point load is a [[load]] table",
     "line_loads": "each line load is a [[line_load]] table",
+    "form": "a [form] table belongs to a bridge scenario (with a [bridge] table)",
 }
 
 _FIXES = ("x", "z", "xz")
@@ -541,6 +543,8 @@ class Scenario:
     description : str
     source : str
         Where the scenario came from (file path), for messages; not compared.
+    form : FormSpec, optional
+        The bridge form to set against the reference (the ``[form]`` table).
     """
 
     name: str
@@ -549,6 +553,7 @@ class Scenario:
     solve: SolveOptions = SolveOptions()
     description: str = ""
     source: str = field(default="<dict>", compare=False)
+    form: FormSpec | None = None
     problem: Problem = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -582,6 +587,8 @@ class Scenario:
             out["material"] = _material_dict(b.material)
             if b.compression_material is not None:
                 out["compression_material"] = _material_dict(b.compression_material)
+            if self.form is not None:
+                out["form"] = self.form.to_dict()
         else:
             out.update(_problem_dict(self.layout))
         solve: dict[str, Any] = {"member_adding": self.solve.member_adding}
@@ -650,8 +657,13 @@ def parse_scenario(data: Mapping, *, source: str = "<dict>") -> Scenario:
     solve = _solve_options(data)
     if has_bridge:
         bridge = _bridge(data, _name(data, "bridge"))
+        form = parse_form(data["form"]) if "form" in data else None
+        if form is not None and form.type != "reference":
+            from .forms.solve import build_form
+
+            build_form(bridge, form)  # the form must fit the domain: report it before solving
         return Scenario(name=bridge.name, bridge=bridge, solve=solve, description=description,
-                        source=source)
+                        source=source, form=form)
     if not has_domain:
         raise InputError("domain", _MISSING, "a [domain] table (layout problem) or a [bridge] "
                          "table (bridge problem)")

@@ -61,7 +61,8 @@ GROUPS = {
     "reference": ("member",),
     "cable-stayed": ("stay", "pylon", "deck", "pier"),
     "suspension": ("cable", "hanger", "tower", "deck", "pier"),
-    "arch": ("arch rib", "hanger", "column", "deck", "pier"),
+    "deck-arch": ("arch rib", "column", "deck", "pier"),
+    "through-arch": ("arch rib", "hanger", "deck", "pier"),
 }
 #: Least clearance between deck and cable or crown, as a part of the available height. [-]
 CLEARANCE = 0.01
@@ -458,5 +459,6 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
     return FormResult(spec=spec, design=design, start_volume=start.volume, volume=design.volume,
                       weight=design.weight, reference=ref, reference_volume=ref.volume,
                       ratio=design.volume / ref.volume,
-                      quantities=group_quantities(design, GROUPS[spec.type]),
+                      quantities=group_quantities(design, GROUPS[getattr(spec, "variant",
+                                                                         spec.type)]),
                       geometry=_geometry(design, spec.type, deck_level(problem)[2]))
