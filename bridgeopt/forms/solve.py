@@ -321,8 +321,9 @@ class FormResult:
         Volume of the form (whole span). [m3]
     weight : float
         Self-weight of the form (whole span). [N]
-    reference : Design
-        The reference optimum (layout optimization) on the same problem.
+    reference : Design or None
+        The reference optimum (layout optimization) on the same problem (None
+        when not compared).
     reference_volume : float [m3]
     ratio : float
         volume / reference_volume. [-]
@@ -338,7 +339,7 @@ class FormResult:
     start_volume: float
     volume: float
     weight: float
-    reference: Design
+    reference: Design | None
     reference_volume: float
     ratio: float
     quantities: dict
@@ -404,7 +405,8 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
 
 
 def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
-               reference: Design | None = None, member_adding: bool = True) -> FormResult:
+               reference: Design | None = None, member_adding: bool = True,
+               compare: bool = True) -> FormResult:
     """Solve the form ``spec`` of ``bridge`` and its reference optimum.
 
     Parameters
@@ -419,6 +421,9 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
         comparing several forms that share it).
     member_adding : bool
         How the reference is solved (same optimum either way).
+    compare : bool
+        Solve the reference; without it ``reference`` is None and the reference
+        volume and ratio are nan (for sweeps of one form).
 
     Returns
     -------
@@ -453,12 +458,17 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
     design = start
     if optimize and moves is not None and moves.size:
         design = _optimized(bridge, spec, problem, frame, moves, start)
-    ref = reference or optimize_layout(problem, member_adding=member_adding)
-    if not math.isfinite(ref.volume) or ref.volume <= 0:
-        raise SolveError("solver", "the reference optimum has no volume to compare with")
+    ref = None
+    if compare:
+        ref = reference or optimize_layout(problem, member_adding=member_adding)
+        if design.volume < ref.volume * (1 - 1e-6):
+            log.warning("the %s form (%.6g m3) is lighter than the reference optimum on this grid "
+                        "(%.6g m3): the grid is too coarse to bound it; use more "
+                        "bridge.divisions", spec.type, design.volume, ref.volume)
+    ref_volume = ref.volume if ref is not None else math.nan
     return FormResult(spec=spec, design=design, start_volume=start.volume, volume=design.volume,
-                      weight=design.weight, reference=ref, reference_volume=ref.volume,
-                      ratio=design.volume / ref.volume,
+                      weight=design.weight, reference=ref, reference_volume=ref_volume,
+                      ratio=design.volume / ref_volume,
                       quantities=group_quantities(design, GROUPS[getattr(spec, "variant",
                                                                          spec.type)]),
                       geometry=_geometry(design, spec.type, deck_level(problem)[2]))
