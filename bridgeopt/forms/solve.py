@@ -367,6 +367,36 @@ class FormResult:
         return "\n".join(lines)
 
 
+#: Reach, as a part of pi*sigma/(rho*g), from which a form that cannot carry its loads is
+#: reported as limited by self-weight. [-]
+REACH_WARNING = 0.15
+
+
+def _size_start(frame: Frame, spec) -> Design:
+    """size_frame, with a clear message when self-weight makes the form impossible."""
+    try:
+        return size_frame(frame)
+    except SolveError as err:
+        if err.status != "infeasible":
+            raise
+        problem = frame.problem
+        lx = np.abs(frame.nodes[frame.end, 0] - frame.nodes[frame.start, 0])
+        k = np.where(frame.senses == "compression", problem.k("compression"),
+                     problem.k("tension"))
+        part = k * lx / math.pi
+        i = int(np.argmax(part))
+        if part[i] < REACH_WARNING:
+            raise
+        raise SolveError(
+            "span-limit",
+            f"the {spec.type} form cannot carry its loads: its {frame.group[i]} members reach "
+            f"up to {lx[i]:.6g} m horizontally, {100 * part[i]:.0f}% of the reach "
+            f"pi*sigma/(rho*g) = {math.pi / k[i]:.6g} m of an equal-strength element, and an "
+            "element that long sags too far under its own weight to carry the deck as well; "
+            "shorten the reach (more pylons, closer hangers, a shorter span), steepen it (a "
+            "taller pylon, more sag or rise) or use a stronger, lighter material") from None
+
+
 #: Most re-shaping rounds of a funicular form with a free sag or rise.
 RESHAPE_ROUNDS = 4
 
@@ -454,7 +484,7 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
                           ratio=1.0, quantities=group_quantities(ref, GROUPS["reference"]),
                           geometry={})
     frame, moves = build_form(bridge, spec, problem)
-    start = size_frame(frame)
+    start = _size_start(frame, spec)
     design = start
     if optimize and moves is not None and moves.size:
         design = _optimized(bridge, spec, problem, frame, moves, start)
