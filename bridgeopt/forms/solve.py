@@ -112,6 +112,29 @@ def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
     return problem
 
 
+def _self_weight_sag(problem: Problem, sense: str, span: float) -> float:
+    """Least sag (or rise) of a cable (or arch) that carries its own weight over ``span``. [m]
+
+    A parabolic estimate (common practice statics): with its own weight k H per
+    unit length added to the deck load w, H f = (w + k H) L^2/8, so
+    H (1 - k L^2/(8 f)) = w L^2/(8 f), which has a positive H only when
+    f > k L^2/8 (k = rho g/sigma).  Hangers or columns add weight, so the true
+    limit is a little higher.
+    """
+    return problem.k(sense) * span ** 2 / 8.0
+
+
+def _check_self_weight(value: float, need: float, span: float, what: str, key: str) -> None:
+    if value <= need:
+        raise SolveError("span-limit",
+                         f"a {what} of {value:.6g} m cannot carry its own weight and the deck over "
+                         f"a {span:.6g} m span: with self-weight it must exceed k L^2/8 = "
+                         f"{need:.6g} m (k = rho*g/sigma; the limit of any span is "
+                         f"pi*sigma/(rho*g) = {math.pi * span ** 2 / (8 * need):.6g} m)"
+                         f"; raise the {what} ({key}) or use a stronger, lighter material"
+                         if need > 0 else f"a {what} of {value:.6g} m is too small")
+
+
 def _panels(bridge: BridgeScenario, spacing: float | None) -> int:
     half = 0.5 * bridge.span
     if spacing is None:
@@ -200,11 +223,15 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
             raise InputError("form.sag_ratio", spec.sag_ratio,
                              f"<= {(top - least) / span:.6g} (the cable's lowest point must stay "
                              f"above the deck under towers at most {top:.6g} m high)")
-        if spec.sag_ratio is None:
+        need = _self_weight_sag(problem, "tension", span)
+        if spec.sag_ratio is not None:
+            _check_self_weight(sag, need, span, "cable sag", "form.sag_ratio")
+        else:
             top = rise if spec.tower_height is None else tower
-            sag, sag_bounds = _free(start.get("sag", START_SAG_RATIO * span),
-                                    LEAST_RATIO * 0.5 * span, top - least,
-                                    "bridge.rise", bridge.rise, "a cable sag")
+            low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
+            _check_self_weight(top - least, low, span, "cable sag", "bridge.rise")
+            sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
+                                    low, top - least, "bridge.rise", bridge.rise, "a cable sag")
         if spec.tower_height is None:
             # the tower height is free: the starting cable hangs from the top of the domain
             tower, _ = _free(start.get("tower_height", rise), sag + least, rise,
@@ -234,15 +261,19 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                              f"{'through arch above' if through else 'deck arch below'} the deck)")
         springing = zd if through else zd - depth
         rise_bounds = height_bounds = None
+        need = _self_weight_sag(problem, "compression", span)
         if spec.rise_ratio is not None:
             f = spec.rise_ratio * span
             if f > room * (1 + 1e-9):
                 raise InputError("form.rise_ratio", spec.rise_ratio,
                                  f"<= {room / span:.6g} (the arch must fit within "
                                  f"{field} = {value:g} m)")
+            _check_self_weight(f, need, span, "arch rise", "form.rise_ratio")
         else:
-            f, rise_bounds = _free(start.get("rise", START_RISE_RATIO * span), LEAST_RATIO * 0.5 * span, room,
-                                   field, value, "an arch")
+            low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
+            _check_self_weight(room, low, span, "arch rise", field)
+            f, rise_bounds = _free(start.get("rise", max(START_RISE_RATIO * span, 1.5 * need)),
+                                   low, room, field, value, "an arch")
         if spec.shape == "free":
             height_bounds = ((zd + CLEARANCE * rise, zd + rise) if through
                              else (springing, springing + room))
@@ -385,6 +416,23 @@ def _size_start(frame: Frame, spec) -> Design:
                      problem.k("tension"))
         part = k * lx / math.pi
         i = int(np.argmax(part))
+        line = {"suspension": ("cable", "tension", "cable sag"),
+                "arch": ("arch rib", "compression", "arch rise")}.get(spec.type)
+        if line is not None and (frame.group == line[0]).any():
+            on = frame.group == line[0]
+            z = frame.nodes[np.concatenate([frame.start[on], frame.end[on]]), 1]
+            xs, xe, _ = deck_level(problem)
+            span = 2 * (xe - xs)
+            need = _self_weight_sag(problem, line[1], span)
+            if np.ptp(z) < 2 * need:
+                raise SolveError(
+                    "span-limit",
+                    f"the {spec.type} form cannot carry its loads: its {line[2]} of "
+                    f"{np.ptp(z):.6g} m is close to the least that carries its own weight over "
+                    f"{span:.6g} m, k L^2/8 = {need:.6g} m (k = rho*g/sigma), and the hangers "
+                    "or columns add more; raise it, shorten the span or use a stronger, "
+                    "lighter material (no span exceeds pi*sigma/(rho*g) = "
+                    f"{math.pi / problem.k(line[1]):.6g} m)") from None
         if part[i] < REACH_WARNING:
             raise
         raise SolveError(
