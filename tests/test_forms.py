@@ -167,6 +167,23 @@ def test_forms_keep_their_senses_groups_and_domain(spec):
         assert senses[g] in (s, "either")
 
 
+@pytest.mark.parametrize("spec", [SuspensionForm(sag_ratio=0.12, spacing=50.0),
+                                  ArchForm(rise_ratio=0.2, spacing=50.0),
+                                  ArchForm(variant="deck-arch", rise_ratio=0.08)],
+                         ids=lambda s: getattr(s, "variant", s.type))
+def test_funicular_profile_needs_no_ballast_under_self_weight(spec):
+    """On the exact funicular the deck carries nothing, where a parabola needs deck members
+    in tension and compression side by side (ballast) to balance the self-weight."""
+    b = bridge(span=2000.0, rise=600.0, depth=200.0, divisions=20)
+    funicular = solve_form(b, spec, optimize=False, compare=False)
+    parabola = solve_form(b, dataclasses.replace(spec, shape="parabolic"), optimize=False,
+                          compare=False)
+    assert funicular.quantities["deck"]["volume_m3"] < 1e-9 * funicular.volume
+    assert parabola.quantities["deck"]["volume_m3"] > 1e-4 * parabola.volume
+    assert funicular.volume < parabola.volume
+    assert_equilibrium(funicular.design)
+
+
 def test_stay_patterns_anchor_where_they_should():
     b = bridge()
     h = b.span / 4.0              # span_to_height = (span / pylons) / h

@@ -1,4 +1,4 @@
-"""Weightless parabolic suspension cable under a uniform deck load.
+"""Weightless parabolic suspension cable, and parabolic arch, under a uniform deck load.
 
 Source: statics derived here; the results are the standard ones of
 suspension-bridge design texts (common practice, e.g. N.J. Gimsing,
@@ -27,6 +27,11 @@ exactly (d^2/24) L (z'^2)'' = 16 f^2 d^2/(3 L^3):
     V_m = (H/sigma) (L + (16 f^2/(3L)) (1 - d^2/L^2)),
 
 which tends to V from below as the hanger count grows.
+
+Arch.  Turned upside down the same statics hold for a parabolic arch rib of
+rise f carrying the deck on hangers (through arch) or columns (deck arch): the
+thrust is H = w L^2/(8 f) and the rib's volume is V_m (with the compression
+design stress).
 """
 
 from __future__ import annotations
@@ -35,7 +40,7 @@ import numpy as np
 import pytest
 
 from bridgeopt import BridgeScenario, Material
-from bridgeopt.forms import SuspensionForm, solve_form
+from bridgeopt.forms import ArchForm, SuspensionForm, solve_form
 from helpers import assert_equilibrium
 
 L = 800.0        # span [m]
@@ -102,3 +107,24 @@ def test_funicular_shape_is_the_parabola_when_weightless():
     za = np.sort(a.nodes[:, 1])
     zb = np.sort(b.nodes[:, 1])
     np.testing.assert_allclose(zb, za, atol=1e-6 * L)
+
+
+@pytest.mark.parametrize("variant", ["through-arch", "deck-arch"])
+@pytest.mark.parametrize("per_half", [3, 10])
+def test_parabolic_arch_thrust_and_rib_volume(variant, per_half):
+    """H = w L^2/(8f) in every rib segment; the rib's volume is V_m; it tends to V."""
+    f = 0.1 * L
+    b = BridgeScenario(span=L, rise=TOWER, depth=TOWER, deck_load=W, material=WEIGHTLESS,
+                       arrangement="single", divisions=10)
+    spec = ArchForm(variant=variant, spacing=L / (2 * per_half), rise_ratio=f / L,
+                    shape="parabolic")
+    result = solve_form(b, spec, compare=False)
+    design = result.design
+    assert_equilibrium(design)
+    rib = design.members.group == "arch rib"
+    assert rib.sum() == per_half
+    np.testing.assert_allclose(design.members.horizontal_force[rib], W * L ** 2 / (8 * f),
+                               rtol=1e-9)
+    vol = result.quantities["arch rib"]["volume_m3"]
+    assert vol == pytest.approx(polygon_volume(f, per_half), rel=1e-9)
+    assert abs(vol / cable_volume(f) - 1) < 1.0 / (4 * per_half ** 2)
