@@ -2,7 +2,7 @@
 
 Commands
 --------
-``solve FILE.toml [--json OUT.json] [--full-ground-structure]``
+``solve FILE.toml [--json OUT.json] [--full-ground-structure] [--geometry-optimization]``
     Solve a scenario file and print a short summary (with the cautions).
 ``demo [--json OUT.json] [--full-ground-structure]``
     Solve the bundled demo crossing.
@@ -36,7 +36,9 @@ from .cautions import CAUTIONS
 from .design import Design
 from .errors import BridgeoptError, InputError, SolveError
 from .export import design_to_dict, write_json
-from .forms import solve_form
+from .forms import form_problem, solve_form
+from .geometry import optimize_geometry
+from .layout import optimize_layout
 from .materials import GRAVITY, Material
 from .scenario import Scenario, load_scenario, solve_scenario
 
@@ -191,6 +193,12 @@ def format_summary(scenario: Scenario, design: Design, wall_seconds: float | Non
     if gap > 0:
         lines.append(_row("optimality gap", f"{gap:.1e} (proven bound on how far the volume "
                           "may lie above the optimum)"))
+    if "history" in st:
+        start = st["history"][0]
+        lines.append(_row("geometry optimization",
+                          f"volume {_g(start['volume'])} -> {_g(design.volume)} m3, nodes "
+                          f"{start['nodes']} -> {len(design.nodes)}, members {start['members']} "
+                          f"-> {len(m)} ({len(st['history']) - 1} stages)"))
     lines.append(_row("equilibrium error", f"{design.equilibrium_error:.1e} of the applied load"))
     if form is not None:
         lines += format_form(form)
@@ -235,13 +243,21 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
     out = _check_json_target(args.json)
     if args.full_ground_structure:
         scenario = scenario.with_solve(member_adding=False)
+    if args.geometry_optimization:
+        scenario = scenario.with_solve(geometry_optimization=True)
     # exp(k h) overflows for members far beyond the self-weight reach; their costs are
     # infinite and the solver drops them, so numpy's overflow warning is only noise here.
     form = None
     with np.errstate(over="ignore"):
         if scenario.form is not None and scenario.form.type != "reference":
-            form = solve_form(scenario.bridge, scenario.form,
-                              optimize=getattr(scenario.solve, "geometry_optimization", True),
+            # a form's free dimensions are always optimized; [solve] geometry_optimization
+            # also rationalises the reference it is compared with
+            reference = None
+            if scenario.solve.geometry_optimization:
+                reference = optimize_geometry(optimize_layout(
+                    form_problem(scenario.bridge, scenario.form),
+                    member_adding=scenario.solve.member_adding, batch=scenario.solve.batch))
+            form = solve_form(scenario.bridge, scenario.form, reference=reference,
                               member_adding=scenario.solve.member_adding)
             design = form.design
         else:
@@ -265,6 +281,9 @@ def _add_solve_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--full-ground-structure", action="store_true",
                    help="solve the full ground structure in one LP (member adding off; same "
                         "optimum, slower; for checks)")
+    p.add_argument("--geometry-optimization", action="store_true",
+                   help="then move, merge and prune the nodes for a cleaner, lighter layout "
+                        "(same as [solve] geometry_optimization = true)")
 
 
 def _run_solve(args) -> int:

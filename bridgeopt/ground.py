@@ -17,7 +17,7 @@ import numpy as np
 from .errors import InputError
 from .problem import Problem
 
-__all__ = ["Grid", "build_grid", "candidate_pairs", "points_in_polygon"]
+__all__ = ["Grid", "build_grid", "candidate_pairs", "points_in_polygon", "members_clear_of_zones"]
 
 #: Number of node pairs examined per chunk when generating candidates.
 PAIR_CHUNK = 2_000_000
@@ -113,7 +113,7 @@ def _segments_cross(p, q, a, b, eps: float) -> np.ndarray:
     return split_pq & split_ab
 
 
-def _clear_of_zones(problem: Problem, grid: Grid, a: np.ndarray, b: np.ndarray) -> np.ndarray:
+def members_clear_of_zones(problem: Problem, grid: Grid, a: np.ndarray, b: np.ndarray) -> np.ndarray:
     """Members that stay in the domain and out of every excluded zone."""
     p, q = grid.xz[a], grid.xz[b]
     ok = np.ones(len(a), dtype=bool)
@@ -161,6 +161,6 @@ def candidate_pairs(problem: Problem, grid: Grid) -> tuple[np.ndarray, np.ndarra
     if not problem.domain.is_box:
         keep = np.ones(len(a), dtype=bool)
         for s in range(0, len(a), PAIR_CHUNK):
-            keep[s:s + PAIR_CHUNK] = _clear_of_zones(problem, grid, a[s:s + PAIR_CHUNK], b[s:s + PAIR_CHUNK])
+            keep[s:s + PAIR_CHUNK] = members_clear_of_zones(problem, grid, a[s:s + PAIR_CHUNK], b[s:s + PAIR_CHUNK])
         a, b = a[keep], b[keep]
     return a, b

@@ -36,6 +36,7 @@ from .bridge import ARRANGEMENTS, BridgeScenario
 from .design import Design
 from .errors import InputError
 from .forms.specs import FormSpec, parse_form
+from .geometry import optimize_geometry
 from .ground import build_grid
 from .layout import nodal_loads, optimize_layout, restrained_rows
 from .materials import PRESETS, Material
@@ -59,11 +60,11 @@ KEYS: dict[str, tuple[str, ...]] = {
     "line_load": ("from", "to", "intensity"),
     "symmetry": ("x",),
     "bridge": ("span", "rise", "depth", "deck_load", "arrangement", "divisions", "name"),
-    "solve": ("member_adding", "batch"),
+    "solve": ("member_adding", "batch", "geometry_optimization"),
 }
 
 #: Keys that are planned but not available in this version (clear message, not a typo hint).
-_PLANNED = {"solve": ("geometry_optimization",)}
+_PLANNED: dict[str, tuple[str, ...]] = {}
 
 #: Hints for keys that are valid elsewhere.
 _HINTS = {
@@ -311,7 +312,11 @@ def _solve_options(data: Mapping) -> "SolveOptions":
     if batch is not None and (not _is_whole(batch) or not 1 <= batch <= _MAX_BATCH):
         raise InputError("solve.batch", _short(batch),
                          f"a whole number from 1 to {_MAX_BATCH} (members added per round)")
-    return SolveOptions(member_adding=member_adding, batch=None if batch is None else int(batch))
+    geometry = raw.get("geometry_optimization", False)
+    if not isinstance(geometry, bool):
+        raise InputError("solve.geometry_optimization", _short(geometry), "true or false")
+    return SolveOptions(member_adding=member_adding, batch=None if batch is None else int(batch),
+                        geometry_optimization=geometry)
 
 
 def _name(data: Mapping, default: str) -> str:
@@ -521,10 +526,14 @@ class SolveOptions:
         Member adding (default) or the full ground structure in one LP; same optimum.
     batch : int, optional
         Most members added per member-adding round (default: the solver's choice).
+    geometry_optimization : bool
+        Move, merge and prune the nodes of the layout afterwards
+        (:func:`~bridgeopt.geometry.optimize_geometry`).
     """
 
     member_adding: bool = True
     batch: int | None = None
+    geometry_optimization: bool = False
 
 
 @dataclass(frozen=True)
@@ -594,6 +603,8 @@ class Scenario:
         solve: dict[str, Any] = {"member_adding": self.solve.member_adding}
         if self.solve.batch is not None:
             solve["batch"] = self.solve.batch
+        if self.solve.geometry_optimization:
+            solve["geometry_optimization"] = True
         out["solve"] = solve
         return out
 
@@ -702,6 +713,9 @@ def load_scenario(path: str | Path) -> Scenario:
 def solve_scenario(scenario: Scenario, *, member_adding: bool | None = None) -> Design:
     """Solve ``scenario`` with its ``[solve]`` options (``member_adding`` overrides).
 
+    With ``geometry_optimization`` the layout is then rationalised by
+    :func:`~bridgeopt.geometry.optimize_geometry`.
+
     A bridge's design is reported per whole span (the half-span model times two).
 
     Raises
@@ -711,4 +725,7 @@ def solve_scenario(scenario: Scenario, *, member_adding: bool | None = None) -> 
     """
     opts = scenario.solve
     adding = opts.member_adding if member_adding is None else member_adding
-    return optimize_layout(scenario.problem, member_adding=adding, batch=opts.batch)
+    design = optimize_layout(scenario.problem, member_adding=adding, batch=opts.batch)
+    if opts.geometry_optimization:
+        design = optimize_geometry(design)
+    return design

@@ -300,3 +300,16 @@ def test_main_returns_exit_codes(small, tmp_path, capsys):
     assert main(["solve", str(bad)]) == 2
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "material.preset" in err and "'steel'" in err
+
+
+def test_solve_with_geometry_optimization(small, tmp_path):
+    out = tmp_path / "go.json"
+    plain = run("solve", str(small), "--json", str(tmp_path / "plain.json"))
+    proc = run("solve", str(small), "--geometry-optimization", "--json", str(out))
+    assert proc.returncode == 0, proc.stderr
+    assert "geometry optimization" in proc.stdout and "CAUTION" in proc.stdout
+    data = json.loads(out.read_text())
+    before = json.loads((tmp_path / "plain.json").read_text())
+    assert plain.returncode == 0
+    assert data["volume"] <= before["volume"] * (1 + 1e-12)
+    assert data["stats"]["history"][0]["volume"] == pytest.approx(before["volume"], rel=1e-9)

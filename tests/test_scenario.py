@@ -387,7 +387,7 @@ UNKNOWN = [
     ("layout", "line_load[0]", "intensity_kN", "intensity"),
     ("layout", "symmetry[0]", "z", "x"),
     ("layout", "solve", "member_addin", "member_adding"),
-    ("layout", "solve", "geometry_optimization", "member_adding"),
+    ("layout", "solve", "geometry_optimisation", "geometry_optimization"),
     ("bridge", "", "support", "bridge"),
     ("bridge", "", "copies", "material"),
     ("bridge", "bridge", "spam", "deck_load"),
@@ -573,3 +573,15 @@ def test_documentation_lists_every_key():
     for table, keys in KEYS.items():
         for key in keys:
             assert f"`{key}`" in text or f"[{key}]" in text or f"[[{key}]]" in text, (table, key)
+
+
+def test_geometry_optimization_key():
+    d = bridge_dict()
+    d["solve"] = {"geometry_optimization": True}
+    sc = parse_scenario(d)
+    assert sc.solve.geometry_optimization is True
+    assert parse_scenario(sc.to_dict()).solve.geometry_optimization is True
+    d["solve"] = {"geometry_optimization": "yes"}
+    with pytest.raises(InputError) as info:
+        parse_scenario(d)
+    assert info.value.field == "solve.geometry_optimization" and "true or false" in str(info.value)
