@@ -2,7 +2,7 @@
 
 Scenario (invented for benchmarking): repeating spans, rise = 0.4 span above the
 deck, depth = 0.15 span below it, deck load 200 kN/m, S355 steel (355 MPa,
-7850 kg/m3) with self-weight, 20 divisions across the span.  For each span the
+7850 kg/m3) with self-weight, 40 divisions across the span.  For each span the
 reference optimum is solved once (every form here uses the bridge's own
 supports) and each form is built, sized, geometry-optimized and compared.
 
@@ -35,7 +35,7 @@ FORMS = {
 
 def crossing(span: float) -> BridgeScenario:
     return BridgeScenario(span=span, rise=0.4 * span, depth=0.15 * span, deck_load=2e5,
-                          material=PRESETS["steel"], arrangement="repeating", divisions=20,
+                          material=PRESETS["steel"], arrangement="repeating", divisions=40,
                           name=f"bench {span / 1000:g} km")
 
 
