@@ -184,6 +184,19 @@ def test_funicular_profile_needs_no_ballast_under_self_weight(spec):
     assert_equilibrium(funicular.design)
 
 
+@pytest.mark.parametrize("spec", [SuspensionForm(), ArchForm()], ids=lambda s: s.type)
+def test_funicular_search_and_free_nodes_agree(spec):
+    """Two routes to the best cable or rib: a scalar search over exact funicular forms, and
+    node moves with every node's height free.  They should meet (within 0.5 %)."""
+    b = bridge(span=1000.0, rise=400.0, depth=150.0, divisions=20, arrangement="single")
+    funicular = solve_form(b, spec, compare=False)
+    free = solve_form(b, dataclasses.replace(spec, shape="free"), compare=False)
+    assert funicular.volume == pytest.approx(free.volume, rel=5e-3)
+    for key, value in funicular.geometry.items():
+        assert value == pytest.approx(free.geometry[key], rel=2e-2), key
+    assert funicular.volume < funicular.start_volume
+
+
 def test_stay_patterns_anchor_where_they_should():
     b = bridge()
     h = b.span / 4.0              # span_to_height = (span / pylons) / h

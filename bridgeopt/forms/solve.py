@@ -445,41 +445,61 @@ def _size_start(frame: Frame, spec) -> Design:
             "taller pylon, more sag or rise) or use a stronger, lighter material") from None
 
 
-#: Most re-shaping rounds of a funicular form with a free sag or rise.
-RESHAPE_ROUNDS = 4
+def _funicular_search(bridge, spec, problem, moves, start: Design) -> Design:
+    """The lightest exactly funicular form over the free sag (rise), by a bounded scalar search.
+
+    A funicular profile belongs to one sag: moved to another it is no longer
+    funicular, and the LP pays for the mismatch with ballast, so node moves from
+    a funicular stop at its own sag.  Here every trial sag gets its own exact
+    funicular, sized by the LP; a free tower height follows the sag at the least
+    clearance (shorter towers and hangers are lighter; the cable is unchanged).
+    """
+    from scipy.optimize import minimize_scalar
+
+    key = "sag" if isinstance(spec, SuspensionForm) else "rise"
+    if key not in moves.names:
+        return start
+    j = moves.names.index(key)
+    now = _geometry(start, spec.type, deck_level(problem)[2])[key]
+    low, high = now + moves.lower[j], now + moves.upper[j]
+    found: dict[float, Design] = {}
+
+    def volume(value: float) -> float:
+        try:
+            frame, _ = build_form(bridge, spec, problem, start={key: value, "tower_height": 0.0})
+            found[value] = size_frame(frame)
+        except (SolveError, InputError):
+            return math.inf
+        return found[value].volume
+
+    minimize_scalar(volume, bounds=(low, high), method="bounded",
+                    options={"xatol": 1e-5 * bridge.span})
+    if not found:
+        return start
+    value = min(found, key=lambda v: found[v].volume)
+    return found[value] if found[value].volume < start.volume else start
 
 
 def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
     """The form after geometry optimization, never heavier than ``start``.
 
-    A funicular cable or rib with a free sag or rise is moved as a whole (one
-    parameter), which leaves it slightly off the funicular of its new loads; it
-    is then re-shaped to the exact funicular at the new sag or rise and moved
-    again, for up to :data:`RESHAPE_ROUNDS` rounds.
+    A funicular cable or rib with a free sag or rise first gets the sag (rise) of
+    the lightest exact funicular (:func:`_funicular_search`); the form's node
+    moves (sag or rise, tower height, or every node with the free shape) then
+    polish it with :func:`~bridgeopt.geometry.optimize_geometry`.
     """
     best = start
-    reshape = getattr(spec, "shape", None) == "funicular"
-    last = None
-    for _ in range(RESHAPE_ROUNDS if reshape else 1):
-        try:
-            design = optimize_geometry(frame, moves=moves)
-        except SolveError as err:  # keep the best geometry found so far
-            log.warning("geometry optimization of the %s form stopped: %s", spec.type, err)
-            break
-        if design.volume < best.volume:
-            best = design
-        if not reshape:
-            break
-        value = _geometry(design, spec.type, deck_level(problem)[2])
-        if not value or (last is not None and max(abs(value[k] - last[k]) for k in value)
-                         <= 1e-6 * bridge.span):
-            break
-        last = value
-        frame, moves = build_form(bridge, spec, problem, start=value)
-        again = size_frame(frame)
-        if again.volume < best.volume:
-            best = again
-    return best
+    if getattr(spec, "shape", None) == "funicular":
+        best = _funicular_search(bridge, spec, problem, moves, start)
+        if best is not start:
+            value = _geometry(best, spec.type, deck_level(problem)[2])
+            frame, moves = build_form(bridge, spec, problem, start=value)
+    try:
+        design = optimize_geometry(frame, moves=moves)
+    except SolveError as err:  # keep the best geometry found so far
+        log.warning("geometry optimization of the %s form stopped: %s", spec.type, err)
+        return best
+    return design if design.volume < best.volume else best
 
 
 def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
