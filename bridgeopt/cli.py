@@ -128,6 +128,11 @@ def format_inputs(scenario: Scenario) -> list[str]:
     else:
         lines.append(_row("tension material", _material_text(tension)))
         lines.append(_row("compression material", _material_text(comp)))
+    if getattr(scenario, "form", None) is not None:
+        keys = ", ".join(f"{k} = {v!r}" for k, v in scenario.form.to_dict().items() if k != "type")
+        lines.append(_row("form", scenario.form.type + (f" ({keys})" if keys else "")
+                          + ("" if scenario.form.type == "reference"
+                             else ", compared with the reference optimum")))
     if scenario.bridge is not None:
         ns = scenario.bridge.normalised_span
         lines.append(_row("normalised span", f"{_g(ns, 4)} (span / (sigma/(rho g)), tension)"))

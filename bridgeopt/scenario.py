@@ -35,6 +35,7 @@ from typing import Any, Mapping
 from .bridge import ARRANGEMENTS, BridgeScenario
 from .design import Design
 from .errors import InputError
+from .forms.build import build_form
 from .forms.specs import FormSpec, parse_form
 from .geometry import optimize_geometry
 from .ground import build_grid
@@ -670,8 +671,6 @@ def parse_scenario(data: Mapping, *, source: str = "<dict>") -> Scenario:
         bridge = _bridge(data, _name(data, "bridge"))
         form = parse_form(data["form"]) if "form" in data else None
         if form is not None and form.type != "reference":
-            from .forms.solve import build_form
-
             build_form(bridge, form)  # the form must fit the domain: report it before solving
         return Scenario(name=bridge.name, bridge=bridge, solve=solve, description=description,
                         source=source, form=form)

@@ -245,6 +245,7 @@ def test_inputs_are_not_mutated_and_results_are_frozen():
 
 def test_quantities_add_up_to_the_form():
     result = solve_form(bridge(), CableStayedForm(stays=5))
+    assert isinstance(result, FormResult)
     q = result.to_frame()
     assert list(q.index[:4]) == ["stay", "pylon", "deck", "pier"]
     assert q["volume_m3"].sum() == pytest.approx(result.volume, rel=1e-12)

@@ -9,8 +9,8 @@ improved by geometry optimization within the form's rules.  See
 
 from .specs import (FORM_TYPES, ArchForm, CableStayedForm, FormSpec, ReferenceForm,
                     SuspensionForm, form_keys, parse_form)
-from .solve import (GROUPS, FormResult, build_form, form_problem, group_quantities,
-                    solve_form)
+from .build import build_form, form_problem
+from .solve import GROUPS, FormResult, group_quantities, solve_form
 
 __all__ = ["FORM_TYPES", "ArchForm", "CableStayedForm", "FormSpec", "ReferenceForm",
            "SuspensionForm", "form_keys", "parse_form", "GROUPS", "FormResult", "build_form",
