@@ -295,6 +295,28 @@ def test_reference_is_a_lower_bound_and_optimization_never_adds_volume(spec, mat
     assert result.ratio >= 1.0
 
 
+def test_a_form_lighter_than_a_coarse_reference_is_flagged(caplog):
+    """The grid reference converges to the optimum from above, so on a very coarse grid a
+    near-optimal form can come out lighter (a weightless single-span through arch is only
+    about 4 % above the optimum, see tests/validation/test_uniform_load_arch.py): warned."""
+    b = BridgeScenario(span=100.0, rise=50.0, depth=0.0, deck_load=1e5,
+                       material=PRESETS["weightless-steel"], arrangement="single", divisions=8)
+    with caplog.at_level("WARNING", logger="bridgeopt.forms.solve"):
+        result = solve_form(b, ArchForm(spacing=5.0))
+    # 8 divisions (4 cells across the half span, 12.5 m) are too coarse to bound the arch
+    assert result.ratio < 1.0
+    assert "too coarse" in caplog.text and "bridge.divisions" in caplog.text
+    finer = solve_form(dataclasses.replace(b, divisions=40), ArchForm(spacing=5.0))
+    assert finer.ratio > 1.0
+
+
+def test_a_reference_of_another_problem_is_refused():
+    b = bridge(divisions=12)
+    other = solve_form(b, ReferenceForm()).design
+    assert_input_error(lambda: solve_form(b, CableStayedForm(pylons=2), reference=other),
+                       "reference", "form_problem")
+
+
 # ---------------------------------------------------------------- self-weight
 
 @pytest.mark.parametrize("spec", [CableStayedForm(stays=6, span_to_height=4.0),

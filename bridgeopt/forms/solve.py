@@ -295,6 +295,10 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
        optimization).
     """
     problem = form_problem(bridge, spec)
+    if reference is not None and reference.problem != problem:
+        raise InputError("reference", "a design of another problem",
+                         "a reference solved on form_problem(bridge, spec) (same domain, loads "
+                         "and supports, so that it bounds the form)")
     if isinstance(spec, ReferenceForm):
         ref = reference or optimize_layout(problem, member_adding=member_adding)
         return FormResult(spec=spec, design=ref, start_volume=ref.volume, volume=ref.volume,
