@@ -153,7 +153,8 @@ def format_form(result) -> list[str]:
     lines.append("  quantities per element group (whole span):")
     for group, q in result.quantities.items():
         lines.append(f"    {group:<10} {q['members']:>4} members  {_g(q['volume_m3']):>12} m3  "
-                     f"{_g(q['weight_N'] / 1e3):>12} kN  largest force {_g(q['largest_force_N'])} N")
+                     f"{_g(q['weight_N'] / 1e3):>12} kN  "
+                     f"largest force {_g(q['largest_force_N'])} N")
     return lines
 
 

@@ -21,7 +21,8 @@ __all__ = ["arch_frame"]
 
 
 def arch_frame(problem, *, panels: int, variant: str, springing: float, rise: float,
-               shape: str = "parabolic", profile=None, rise_bounds: tuple[float, float] | None = None,
+               shape: str = "parabolic", profile=None,
+               rise_bounds: tuple[float, float] | None = None,
                height_bounds: tuple[float, float] | None = None):
     """Frame (and free rise or rib heights, if any) of an arch form on ``problem``.
 

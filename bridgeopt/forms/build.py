@@ -181,8 +181,9 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                                  f"deck, must fit within the rise of {rise:.6g} m)")
             bounds = None
         else:
-            h, bounds = _free(start.get("pylon_height", 2 * reach / START_SPAN_TO_HEIGHT), LEAST_RATIO * reach, rise,
-                              "bridge.rise", bridge.rise, "a pylon above the deck")
+            h, bounds = _free(start.get("pylon_height", 2 * reach / START_SPAN_TO_HEIGHT),
+                              LEAST_RATIO * reach, rise, "bridge.rise", bridge.rise,
+                              "a pylon above the deck")
         return cable_stayed_frame(problem, pylons_x=_pylon_positions(bridge, spec.pylons),
                                   reach=reach, pattern=spec.pattern, stays=spec.stays,
                                   height=h, anchor_zone=spec.anchor_zone, height_bounds=bounds)
@@ -209,7 +210,7 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
         else:
             top = rise if spec.tower_height is None else tower
             low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(top - least, low, span, "cable sag", "bridge.rise")
+            _check_self_weight(top - least, 1.02 * need, span, "cable sag", "bridge.rise")
             sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
                                     low, top - least, "bridge.rise", bridge.rise, "a cable sag")
         if spec.tower_height is None:
@@ -251,7 +252,7 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
             _check_self_weight(f, need, span, "arch rise", "form.rise_ratio")
         else:
             low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(room, low, span, "arch rise", field)
+            _check_self_weight(room, 1.02 * need, span, "arch rise", field)
             f, rise_bounds = _free(start.get("rise", max(START_RISE_RATIO * span, 1.5 * need)),
                                    low, room, field, value, "an arch")
         if spec.shape == "free":

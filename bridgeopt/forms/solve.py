@@ -140,7 +140,8 @@ class FormResult:
 
     def summary(self) -> str:
         """A few lines for the engineer (without the cautions, which the caller adds)."""
-        lines = [f"{self.form_type} form: volume {self.volume:.6g} m3 (start {self.start_volume:.6g}"
+        lines = [f"{self.form_type} form: volume {self.volume:.6g} m3 (start "
+                 f"{self.start_volume:.6g}"
                  f" m3), weight {self.weight:.6g} N; reference optimum {self.reference_volume:.6g}"
                  f" m3; ratio {self.ratio:.4f}"]
         for g, q in self.quantities.items():

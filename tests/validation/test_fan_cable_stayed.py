@@ -58,7 +58,8 @@ def continuous(h: float) -> float:
 
 def discrete(h: float, n: int) -> float:
     """V_n of the fan with n stays (module docstring). [m3]"""
-    return W / SIGMA * (2 * A ** 3 / (3 * h) * (1 + 1 / (2 * n * n)) + 2 * h * A * (1 - 1 / (2 * n)))
+    return W / SIGMA * (2 * A ** 3 / (3 * h) * (1 + 1 / (2 * n * n))
+                        + 2 * h * A * (1 - 1 / (2 * n)))
 
 
 def best_height(n: int) -> float:
