@@ -252,6 +252,7 @@ def test_quantities_add_up_to_the_form():
     assert q["weight_N"].sum() == pytest.approx(result.weight, rel=1e-12)
     assert result.ratio == pytest.approx(result.volume / result.reference_volume)
     assert result.geometry["pylon_height"] > 0
+    assert result.summary().endswith(CAUTIONS) and "ratio" in result.summary()
 
 
 def test_reference_form_is_the_reference():

@@ -18,6 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..bridge import BridgeScenario
+from ..cautions import CAUTIONS
 from ..design import Design
 from ..errors import InputError, SolveError
 from ..frame import Frame, size_frame
@@ -139,13 +140,14 @@ class FormResult:
         return df
 
     def summary(self) -> str:
-        """A few lines for the engineer (without the cautions, which the caller adds)."""
+        """A few lines for the engineer, ending with the cautions."""
         lines = [f"{self.form_type} form: volume {self.volume:.6g} m3 (start "
                  f"{self.start_volume:.6g}"
                  f" m3), weight {self.weight:.6g} N; reference optimum {self.reference_volume:.6g}"
                  f" m3; ratio {self.ratio:.4f}"]
         for g, q in self.quantities.items():
             lines.append(f"  {g}: {q['members']} members, {q['volume_m3']:.6g} m3")
+        lines.append(CAUTIONS)
         return "\n".join(lines)
 
 
