@@ -1,4 +1,4 @@
-"""Weightless fan cable-stayed cantilever: closed form, discrete form and best pylon height.
+"""Weightless fan and harp cable-stayed cantilevers: closed forms and best pylon heights.
 
 Source: statics derived here (common practice; the continuous result is the
 textbook fan estimate, e.g. M.S. Troitsky, Cable-Stayed Bridges: Theory and
@@ -29,6 +29,20 @@ give
 
 using sum_{i<n} i^2 + n^2/2 = n(2n^2 + 1)/6.  V_n tends to V as n grows; its
 least value is at h_n = a sqrt((1 + 1/(2n^2)) / (3 (1 - 1/(2n)))).
+
+Harp with n parallel stays, stay i from the pylon at height h i/n to the deck
+at a i/n (same slope h/a for all; the pylon line is the mirror line, so each
+anchor's horizontal pull is balanced by the other side).  Stay i carries P_i
+up with force P_i sqrt(a^2 + h^2)/h over a length (i/n) sqrt(a^2 + h^2): volume
+P_i (i/n)(a^2 + h^2)/(h sigma).  The pylon segment below anchor j carries
+sum_{i>=j} P_i over h/n, and the deck segment j the horizontal pulls
+sum_{i>=j} P_i a/h over a/n, so each adds (sum_i i P_i/n) (h or a^2/h)/sigma.
+With the lumped loads, sum_i i P_i / n = (w a/n^2)((n - 1)n/2 + n/2) = w a/2
+for every n, so
+
+    V_harp = (w/sigma) a (a^2 + h^2)/h   (exact for every n),
+
+least at h = a, where V = 2 w a^2/sigma.
 """
 
 from __future__ import annotations
@@ -116,6 +130,34 @@ def test_geometry_optimization_finds_the_best_pylon_height(n):
     assert top == pytest.approx(best_height(n), rel=2e-3)
     assert design.volume == pytest.approx(discrete(best_height(n), n), rel=1e-5)
     assert abs(best_height(n) - H_BEST) < abs(best_height(n // 4 or 1) - H_BEST) or n < 16
+
+
+def harp(n: int, h: float, bounds=None):
+    return cable_stayed_frame(cantilever(top=1.5 * A), pylons_x=[0.0], reach=A, pattern="harp",
+                              stays=n, height=h, height_bounds=bounds)
+
+
+@pytest.mark.parametrize("h", [0.4 * A, A, 1.3 * A])
+@pytest.mark.parametrize("n", [1, 4, 15])
+def test_harp_volume_is_exact_for_every_stay_count(n, h):
+    design = size_frame(harp(n, h)[0])
+    assert_equilibrium(design)
+    assert design.volume == pytest.approx(W / SIGMA * A * (A * A + h * h) / h, rel=1e-9)
+    stays = design.members.group == "stay"
+    assert stays.sum() == n
+    # parallel stays: one slope h/a
+    m = design.members
+    dz = design.nodes[m.end[stays], 1] - design.nodes[m.start[stays], 1]
+    dx = design.nodes[m.end[stays], 0] - design.nodes[m.start[stays], 0]
+    np.testing.assert_allclose(np.abs(dz / dx), h / A, rtol=1e-12)
+
+
+def test_geometry_optimization_finds_the_best_harp_height():
+    """One parameter scales every anchor height; the optimum is h = a, V = 2 w a^2/sigma."""
+    frame, moves = harp(6, 0.5 * A, bounds=(0.05 * A, 1.5 * A))
+    design = optimize_geometry(frame, moves=moves)
+    assert design.nodes[:, 1].max() == pytest.approx(A, rel=2e-3)
+    assert design.volume == pytest.approx(2 * W * A * A / SIGMA, rel=1e-5)
 
 
 def test_optimum_height_tends_to_a_over_root_three():
