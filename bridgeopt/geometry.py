@@ -50,7 +50,7 @@ from .ground import Grid, members_clear_of_zones, points_in_polygon
 from .layout import scales
 from .lp import column_entries, solve_lp
 from .sensitivity import linearise
-from .topology import NodeRoles, node_roles, simplify
+from .topology import NodeRoles, groups, node_roles, simplify
 
 __all__ = ["NodeMoves", "default_moves", "optimize_geometry"]
 
@@ -110,22 +110,6 @@ class NodeMoves:
         return self.T.shape[1]
 
 
-def _union_find(n: int, pairs: np.ndarray) -> np.ndarray:
-    parent = np.arange(n)
-
-    def root(i: int) -> int:
-        while parent[i] != i:
-            parent[i] = parent[parent[i]]
-            i = parent[i]
-        return i
-
-    for i, j in pairs:
-        ri, rj = root(int(i)), root(int(j))
-        if ri != rj:
-            parent[max(ri, rj)] = min(ri, rj)
-    return np.array([root(i) for i in range(n)])
-
-
 def deck_homes(frame: Frame, roles: NodeRoles | None = None) -> np.ndarray:
     """x of the frame's nodes on line loads: where deck nodes may slide from. [m]"""
     roles = roles or node_roles(frame)
@@ -147,7 +131,7 @@ def default_moves(frame: Frame, roles: NodeRoles | None = None, *,
     a, b = frame.start, frame.end
     vert = np.abs(frame.nodes[b, 0] - frame.nodes[a, 0]) <= tol
     # x: nodes joined by vertical members move together
-    xgroup = _union_find(n, np.column_stack([a[vert], b[vert]]))
+    xgroup = groups(n, np.column_stack([a[vert], b[vert]]))
     cols, lower, upper, names = [], [], [], []
     for g in np.unique(xgroup):
         members_ = np.nonzero(xgroup == g)[0]
