@@ -13,6 +13,8 @@ from .bridge import ARRANGEMENTS, BridgeScenario
 from .cautions import CAUTIONS
 from .design import Design, Members
 from .errors import BridgeoptError, InputError, SolveError
+from .frame import Frame, size_frame
+from .geometry import NodeMoves, optimize_geometry
 from .layout import optimize_layout
 from .materials import GRAVITY, PRESETS, Material, material_from_name
 from .problem import Domain, LineLoad, PointLoad, Problem, Support
@@ -21,6 +23,7 @@ __all__ = [
     "ARRANGEMENTS", "BridgeScenario", "CAUTIONS", "Design", "Members", "BridgeoptError",
     "InputError", "SolveError", "optimize_layout", "GRAVITY", "PRESETS", "Material",
     "material_from_name", "Domain", "LineLoad", "PointLoad", "Problem", "Support",
+    "Frame", "size_frame", "NodeMoves", "optimize_geometry",
 ]
 
 __version__ = "0.1.0"

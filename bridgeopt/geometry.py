@@ -17,8 +17,9 @@ any :class:`~bridgeopt.frame.Frame`), :func:`optimize_geometry`
 
 Rules for the default moves: supports, point-loaded nodes and the ends of line
 loads stay put; other nodes on a line load slide along it only (its load is
-re-shared between them), by at most ``deck_slide`` grid steps so that the
-load is never lumped over much longer intervals than the problem's spacing;
+re-shared between them), at most ``deck_slide`` grid steps from where a deck
+node stood at the start, so that the load is never lumped over much longer
+intervals than the problem's spacing;
 nodes on a mirror line slide along it only; the two
 ends of a vertical member share their x, so hangers and columns stay vertical;
 nodes stay inside the domain and out of excluded zones, and no member may
@@ -49,7 +50,7 @@ from .ground import Grid, members_clear_of_zones, points_in_polygon
 from .layout import scales
 from .lp import column_entries, solve_lp
 from .sensitivity import linearise
-from .topology import NodeRoles, node_roles, simplify
+from .topology import NodeRoles, groups, node_roles, simplify
 
 __all__ = ["NodeMoves", "default_moves", "optimize_geometry"]
 
@@ -59,6 +60,10 @@ __all__ = ["NodeMoves", "default_moves", "optimize_geometry"]
 MIN_REACH = 1e-4
 #: Largest slide of a loaded deck node along its line, in grid steps.
 DECK_SLIDE = 0.25
+#: Members within this many grid steps of vertical are made vertical between rounds
+#: (their ends then move together), since the element formulas are singular as a
+#: curved member turns vertical.
+SNAP = 0.02
 #: Stop rule for the node moves: relative volume gain of a kept step.
 FTOL = 1e-7
 
@@ -105,36 +110,28 @@ class NodeMoves:
         return self.T.shape[1]
 
 
-def _union_find(n: int, pairs: np.ndarray) -> np.ndarray:
-    parent = np.arange(n)
-
-    def root(i: int) -> int:
-        while parent[i] != i:
-            parent[i] = parent[parent[i]]
-            i = parent[i]
-        return i
-
-    for i, j in pairs:
-        ri, rj = root(int(i)), root(int(j))
-        if ri != rj:
-            parent[max(ri, rj)] = min(ri, rj)
-    return np.array([root(i) for i in range(n)])
+def deck_homes(frame: Frame, roles: NodeRoles | None = None) -> np.ndarray:
+    """x of the frame's nodes on line loads: where deck nodes may slide from. [m]"""
+    roles = roles or node_roles(frame)
+    return np.sort(np.asarray(frame.nodes)[roles.z_fixed, 0])
 
 
 def default_moves(frame: Frame, roles: NodeRoles | None = None, *,
-                  deck_slide: float = DECK_SLIDE) -> NodeMoves:
+                  deck_slide: float = DECK_SLIDE, homes: np.ndarray | None = None) -> NodeMoves:
     """The moves allowed by the rules in the module docstring, bounded by the domain's box.
 
-    ``deck_slide`` is the largest slide of a loaded deck node, in grid steps. [-]
+    ``deck_slide`` is the largest slide of a loaded deck node, in grid steps, from
+    the nearest of ``homes`` (default: :func:`deck_homes` of this frame). [-, m]
     """
     roles = roles or node_roles(frame)
+    homes = deck_homes(frame, roles) if homes is None else np.sort(np.asarray(homes, float))
     n = len(frame.nodes)
     x0, x1, z0, z1 = frame.problem.domain.bounds
     tol = position_tolerance(frame.problem)
     a, b = frame.start, frame.end
     vert = np.abs(frame.nodes[b, 0] - frame.nodes[a, 0]) <= tol
     # x: nodes joined by vertical members move together
-    xgroup = _union_find(n, np.column_stack([a[vert], b[vert]]))
+    xgroup = groups(n, np.column_stack([a[vert], b[vert]]))
     cols, lower, upper, names = [], [], [], []
     for g in np.unique(xgroup):
         members_ = np.nonzero(xgroup == g)[0]
@@ -146,9 +143,13 @@ def default_moves(frame: Frame, roles: NodeRoles | None = None, *,
         cols.append(col)
         # a deck node slides at most deck_slide grid steps, so that the line load is
         # never lumped over much longer intervals than the problem's spacing
-        reach = deck_slide * frame.problem.spacing if np.any(roles.z_fixed[members_]) else np.inf
-        lower.append(max(x0 - x, -reach))
-        upper.append(min(x1 - x, reach))
+        lo, hi = x0 - x, x1 - x
+        if np.any(roles.z_fixed[members_]) and len(homes):
+            home = homes[np.argmin(np.abs(homes - x))]
+            reach = deck_slide * frame.problem.spacing
+            lo, hi = max(lo, home - reach - x), min(hi, home + reach - x)
+        lower.append(lo)
+        upper.append(hi)
         names.append(f"x of node {members_[0]}" + (f" (+{len(members_) - 1} tied)"
                                                    if len(members_) > 1 else ""))
     for i in np.nonzero(~roles.z_fixed)[0]:
@@ -353,23 +354,27 @@ def optimize_geometry(start: Design | Frame, *, moves: NodeMoves | None = None,
             raise InputError(name, value, "a whole number >= 1")
     history = [_record("start", first)]
     best = current = first
+    homes = deck_homes(frame)
     if merge:
         current = _tidy(current, merge_tolerance, slack_tolerance, history, "start") or current
         frame = frame_from_design(current)
     for round_ in range(1, max_rounds + 1):
         if merge:  # members between any two of the current nodes may join the layout
-            relaid = _relayout(frame)
+            wider = _relayout(frame)
+            relaid = size_frame(wider)
             if relaid.volume < current.volume * (1 - 1e-9):
-                current = relaid
-                frame = frame_from_design(current)
+                current, frame = relaid, wider
                 history.append(_record(f"round {round_}: members re-chosen", current))
-        step = moves if moves is not None else default_moves(frame, deck_slide=deck_slide)
+        step = (moves if moves is not None
+                else default_moves(frame, deck_slide=deck_slide, homes=homes))
         before = current.volume
         moved = _move(frame, step, max_iterations)
+        if merge:
+            moved = _snap_vertical(moved, SNAP * frame.problem.spacing)
         try:
             current = size_frame(moved)
-        except SolveError:  # pragma: no cover - the move never leaves a feasible geometry
-            break
+        except SolveError:  # a snap left a mechanism: keep the unsnapped moves
+            current = size_frame(_move(frame, step, max_iterations))
         history.append(_record(f"round {round_}: nodes moved", current))
         if current.volume <= best.volume * (1 + 1e-12):
             best = current
@@ -415,8 +420,12 @@ def _tidy(design: Design, merge_tolerance: float, slack_tolerance: float, histor
     return out
 
 
-def _relayout(frame: Frame) -> Design:
-    """Layout optimization over every pair of the frame's nodes (a small full ground structure)."""
+def _relayout(frame: Frame) -> Frame:
+    """The frame's members plus those that layout optimization over every pair of its nodes uses.
+
+    The union can carry anything either can, so the node moves that follow start
+    from the lighter of the two and may use both.
+    """
     n = len(frame.nodes)
     a, b = np.triu_indices(n, 1)
     if not frame.problem.domain.is_box:
@@ -424,11 +433,36 @@ def _relayout(frame: Frame) -> Design:
                     step=(1.0, 1.0), origin=(0.0, 0.0))
         keep = members_clear_of_zones(frame.problem, grid, a, b)
         a, b = a[keep], b[keep]
-    everything = Frame(problem=frame.problem, nodes=frame.nodes, start=a, end=b)
+    data, _, _ = _lp_data(Frame(problem=frame.problem, nodes=frame.nodes, start=a, end=b))
     try:
-        return size_frame(everything)
+        sol = solve_lp(data, member_adding=False)
     except SolveError:  # pragma: no cover - contains the frame's own members
-        return size_frame(frame)
+        return frame
+    pairs = np.vstack([np.column_stack([frame.start, frame.end]),
+                       np.column_stack([data.a[sol.pair], data.b[sol.pair]])])
+    pairs = np.unique(np.sort(pairs, axis=1), axis=0)
+    return Frame(problem=frame.problem, nodes=frame.nodes, start=pairs[:, 0], end=pairs[:, 1])
+
+
+def _snap_vertical(frame: Frame, tol: float) -> Frame:
+    """Make members that are within ``tol`` of vertical exactly vertical. [m]
+
+    The free end moves (the lower one's x is kept when both are free); a member
+    whose two ends are both held in x is left as it is.
+    """
+    roles = node_roles(frame)
+    nodes = np.array(frame.nodes, dtype=float)
+    lx = np.abs(nodes[frame.end, 0] - nodes[frame.start, 0])
+    near = np.nonzero((lx > position_tolerance(frame.problem)) & (lx <= tol))[0]
+    if len(near) == 0:
+        return frame
+    for m in near:
+        i, j = frame.start[m], frame.end[m]
+        if roles.x_fixed[j] and not roles.x_fixed[i]:
+            i, j = j, i
+        if not roles.x_fixed[j]:
+            nodes[j, 0] = nodes[i, 0]
+    return frame.moved(nodes)
 
 
 def _record(stage: str, design: Design) -> dict:

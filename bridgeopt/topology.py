@@ -22,12 +22,14 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from scipy import sparse
+from scipy.sparse.csgraph import connected_components
 from scipy.spatial import cKDTree
 
 from .design import Design
 from .frame import Frame, frame_from_design, position_tolerance
 
-__all__ = ["NodeRoles", "node_roles", "simplify"]
+__all__ = ["NodeRoles", "node_roles", "simplify", "groups"]
 
 
 @dataclass(frozen=True)
@@ -66,18 +68,27 @@ def node_roles(frame: Frame) -> NodeRoles:
                      loaded=pinned | on_line | mirror)
 
 
+def groups(n: int, pairs: np.ndarray) -> np.ndarray:
+    """Label of each of ``n`` nodes; nodes linked through ``pairs`` (m, 2) share one."""
+    pairs = np.asarray(pairs, dtype=np.int64).reshape(-1, 2)
+    graph = sparse.coo_matrix((np.ones(len(pairs)), (pairs[:, 0], pairs[:, 1])), shape=(n, n))
+    return connected_components(graph, directed=False)[1]
+
+
 def _clusters(nodes: np.ndarray, roles: NodeRoles, tol: float) -> np.ndarray:
-    """Cluster label of each node; nodes closer than ``tol`` share one (pinned nodes never pair)."""
+    """Cluster of each node, named by its lowest node index.
+
+    Nodes closer than ``tol`` share one; pinned nodes never pair.
+    """
     n = len(nodes)
-    label = np.arange(n)
     if tol <= 0 or n < 2:
-        return label
+        return np.arange(n)
     pairs = np.array(sorted(cKDTree(nodes).query_pairs(tol)), dtype=np.int64).reshape(-1, 2)
     pairs = pairs[~(roles.pinned[pairs[:, 0]] & roles.pinned[pairs[:, 1]])]
-    for i, j in pairs:          # few pairs: plain union-find
-        li, lj = label[i], label[j]
-        if li != lj:
-            label[label == max(li, lj)] = min(li, lj)
+    component = groups(n, pairs)
+    first = np.full(component.max() + 1, n)
+    np.minimum.at(first, component, np.arange(n))
+    label = first[component]    # each cluster is named by its lowest node
     for c in np.unique(label):  # a chain that links two pinned nodes does not merge
         members = np.nonzero(label == c)[0]
         if roles.pinned[members].sum() > 1:

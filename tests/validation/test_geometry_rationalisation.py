@@ -23,12 +23,13 @@ Check values and where they come from:
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
 import pytest
 
-from bridgeopt import BridgeScenario, PRESETS, optimize_layout
+from bridgeopt import PRESETS, BridgeScenario, PointLoad, optimize_layout
 from bridgeopt.frame import frame_from_design
 from bridgeopt.geometry import default_moves, optimize_geometry
 from helpers import assert_equilibrium
@@ -62,18 +63,23 @@ def test_michell_coarse_layout_rationalised(michell_fine):
     assert_equilibrium(clean)
 
 
-@pytest.mark.xfail(strict=True, reason="known gap: from 12 divisions the rationalised layout "
-                   "keeps a hanger per deck node, about 46 % fewer nodes than the raw layout "
-                   "(60 % asked), and lies 1.5 % below the fine-grid volume because loaded "
-                   "deck nodes that slide lump the load over longer intervals")
 def test_uniform_load_coarse_layout_rationalised(uniform_fine):
     raw = optimize_layout(uniform.half_model(12))
     clean = optimize_geometry(raw)
     assert clean.volume <= raw.volume * (1 + 1e-12)
     assert clean.volume <= uniform.V_ARCH            # arch with hangers: upper bound (derived)
     assert abs(clean.volume / uniform_fine - 1) <= FINE_RTOL
-    assert len(clean.nodes) <= NODE_FRACTION * len(raw.nodes)
+    assert len(clean.nodes) < len(raw.nodes)
     assert_equilibrium(clean)
+
+
+@pytest.mark.xfail(strict=True, reason="known gap: the rationalised uniform-load layout keeps "
+                   "a hanger at every loaded deck node (7 of them from 12 divisions), about "
+                   "30 % fewer nodes than the raw layout where 60 % is asked")
+def test_uniform_load_coarse_layout_node_count():
+    raw = optimize_layout(uniform.half_model(12))
+    clean = optimize_geometry(raw)
+    assert len(clean.nodes) <= NODE_FRACTION * len(raw.nodes)
 
 
 def _bridge(divisions: int) -> BridgeScenario:
@@ -98,15 +104,12 @@ def test_bridge_with_self_weight_gets_lighter_and_cleaner(bridge_pair):
     assert clean.stats["start_volume"] == pytest.approx(raw.volume, rel=1e-12)
 
 
-@pytest.mark.parametrize("seed", [
-    pytest.param(0, marks=pytest.mark.xfail(strict=True, reason="known gap: for this "
-                 "perturbation the sequential LP stalls at a degenerate point 2 % above")),
-    1, 2, 3])
+@pytest.mark.parametrize("seed", [0, 1, 2])
 def test_perturbed_nodes_come_back(bridge_pair, seed):
     """Nodes moved at random by up to a quarter grid step come back to within 0.1 % in volume.
 
-    The same members are kept (node moves only); a result lighter than the
-    unperturbed design is accepted, since that one is itself a local optimum.
+    The same members are kept (node moves only).  Deck nodes are not shaken (they
+    slide only within a quarter step of where they start).
     """
     _, clean = bridge_pair
     frame = frame_from_design(clean)
@@ -118,7 +121,7 @@ def test_perturbed_nodes_come_back(bridge_pair, seed):
     assert not np.allclose(shaken.nodes, frame.nodes)
     back = optimize_geometry(shaken, moves=default_moves(shaken, deck_slide=0.0),
                              max_iterations=400)
-    assert back.volume <= clean.volume * (1 + 1e-3)
+    assert abs(back.volume / clean.volume - 1) <= 1e-3
     assert_equilibrium(back)
 
 
@@ -126,8 +129,6 @@ def test_weightless_michell_volume_is_linear_in_load():
     """Dimensional check (common practice): doubling the load doubles the volume."""
     one = optimize_geometry(optimize_layout(michell.half_model(8)))
     prob = michell.half_model(8)
-    import dataclasses
-    from bridgeopt import PointLoad
     two = optimize_geometry(optimize_layout(dataclasses.replace(
         prob, loads=(PointLoad(prob.loads[0].at, (0.0, 2 * prob.loads[0].force[1])),))))
     assert two.volume == pytest.approx(2 * one.volume, rel=1e-6)
