@@ -311,6 +311,20 @@ def test_a_form_lighter_than_a_coarse_reference_is_flagged(caplog):
     assert finer.ratio > 1.0
 
 
+def test_stays_default_to_one_per_grid_step_and_coarser_decks_are_flagged(caplog):
+    b = bridge(divisions=12)                       # grid step 50 m, half span 300 m
+    frame, _ = build_form(b, CableStayedForm())
+    assert (frame.group == "stay").sum() == 6
+    with caplog.at_level("WARNING", logger="bridgeopt.forms.solve"):
+        fine = solve_form(b, CableStayedForm(), compare=False)
+    assert fine.geometry["deck_panel"] == pytest.approx(50.0)
+    assert "more coarsely" not in caplog.text
+    with caplog.at_level("WARNING", logger="bridgeopt.forms.solve"):
+        coarse = solve_form(b, CableStayedForm(stays=2), compare=False)
+    assert coarse.geometry["deck_panel"] == pytest.approx(150.0)
+    assert "more coarsely than the reference's grid step of 50 m" in caplog.text
+
+
 def test_a_reference_of_another_problem_is_refused():
     b = bridge(divisions=12)
     other = solve_form(b, ReferenceForm()).design

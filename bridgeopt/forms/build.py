@@ -115,6 +115,15 @@ def _check_self_weight(value: float, need: float, span: float, what: str, key: s
                          if need > 0 else f"a {what} of {value:.6g} m is too small")
 
 
+def _stays(bridge: BridgeScenario, reach: float) -> int:
+    """Stays per side so that they meet the deck once per grid step (at most 200)."""
+    n = max(1, round(reach / bridge.spacing))
+    if n > 200:
+        raise InputError("form.stays", None, "given (at most 200): one stay per grid step "
+                         f"would need {n}")
+    return n
+
+
 def _panels(bridge: BridgeScenario, spacing: float | None) -> int:
     half = 0.5 * bridge.span
     if spacing is None:
@@ -185,7 +194,8 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                               LEAST_RATIO * reach, rise, "bridge.rise", bridge.rise,
                               "a pylon above the deck")
         return cable_stayed_frame(problem, pylons_x=_pylon_positions(bridge, spec.pylons),
-                                  reach=reach, pattern=spec.pattern, stays=spec.stays,
+                                  reach=reach, pattern=spec.pattern,
+                                  stays=spec.stays or _stays(bridge, reach),
                                   height=h, anchor_zone=spec.anchor_zone, height_bounds=bounds)
     if isinstance(spec, SuspensionForm):
         least = CLEARANCE * rise
@@ -238,7 +248,8 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
         if room <= 0:
             raise InputError("form.variant", spec.variant,
                              f"{'deck-arch' if through else 'through-arch'} here ({field} "
-                             f"= {value:g} m leaves no room for a "
+                             f"= {value:g} m, clipped to whole grid steps of "
+                             f"{bridge.spacing:.6g} m, leaves no room for a "
                              f"{'through arch above' if through else 'deck arch below'} the deck)")
         springing = zd if through else zd - depth
         rise_bounds = height_bounds = None

@@ -76,6 +76,9 @@ def _geometry(design: Design, form_type: str, deck_z: float) -> dict:
         return xz[np.concatenate([m.start[sel], m.end[sel]])]
 
     out = {}
+    loaded = np.sort(xz[np.any(design.loads != 0, axis=1), 0])
+    if len(loaded) > 1:
+        out["deck_panel"] = float(np.diff(loaded).max())
     if form_type == "cable-stayed" and (m.group == "pylon").any():
         out["pylon_height"] = float(ends("pylon")[:, 1].max() - deck_z)
     if form_type == "suspension" and (m.group == "cable").any():
@@ -113,7 +116,8 @@ class FormResult:
         Per element group (see :func:`group_quantities`).
     geometry : dict
         Main dimensions of the final form: ``pylon_height``, ``tower_height``,
-        ``sag`` or ``rise``. [m]
+        ``sag`` or ``rise``, and ``deck_panel``, the largest distance between
+        the deck's loaded nodes (where stays, hangers or columns hold it). [m]
     """
 
     spec: FormSpec
@@ -320,10 +324,16 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
             log.warning("the %s form (%.6g m3) is lighter than the reference optimum on this grid "
                         "(%.6g m3): the grid is too coarse to bound it; use more "
                         "bridge.divisions", spec.type, design.volume, ref.volume)
+    geometry = _geometry(design, spec.type, deck_level(problem)[2])
+    if geometry.get("deck_panel", 0.0) > 1.01 * bridge.spacing:
+        log.warning("the %s form loads its deck only every %.6g m, more coarsely than the "
+                    "reference's grid step of %.6g m: the deck is taken to span between them "
+                    "without being sized, which favours the form; use more stays or a closer "
+                    "spacing", spec.type, geometry["deck_panel"], bridge.spacing)
     ref_volume = ref.volume if ref is not None else math.nan
     return FormResult(spec=spec, design=design, start_volume=start.volume, volume=design.volume,
                       weight=design.weight, reference=ref, reference_volume=ref_volume,
                       ratio=design.volume / ref_volume,
                       quantities=group_quantities(design, GROUPS[getattr(spec, "variant",
                                                                          spec.type)]),
-                      geometry=_geometry(design, spec.type, deck_level(problem)[2]))
+                      geometry=geometry)

@@ -83,8 +83,9 @@ class CableStayedForm:
         Stay arrangement: all stays from the pylon top (fan); spread over the
         top ``anchor_zone`` of the pylon, the farthest stay highest (semi-fan);
         parallel stays, anchors evenly up the whole pylon (harp).
-    stays : int
-        Stays on each side of each pylon. [-]
+    stays : int, optional
+        Stays on each side of each pylon. [-]  Left out: one per grid step
+        (span/divisions) of the deck, as finely as the reference is loaded.
     pylons : int
         Pylons per span: 1 puts a pylon at every pier only; more adds
         intermediate pylons, evenly spaced inside the span, each on its own pier
@@ -99,14 +100,15 @@ class CableStayedForm:
 
     type = "cable-stayed"
     pattern: str = "fan"
-    stays: int = 10
+    stays: int | None = None
     pylons: int = 1
     span_to_height: float | None = None
     anchor_zone: float = 0.25
 
     def __post_init__(self) -> None:
         _choice("form.pattern", self.pattern, STAY_PATTERNS)
-        _whole("form.stays", self.stays, 1, MAX_PANELS, "stays per side of a pylon")
+        if self.stays is not None:
+            _whole("form.stays", self.stays, 1, MAX_PANELS, "stays per side of a pylon")
         _whole("form.pylons", self.pylons, 1, MAX_PYLONS, "pylons per span")
         _ratio("form.span_to_height", self.span_to_height,
                "a number > 0 (pylon spacing over pylon height), or left out (height free)")
