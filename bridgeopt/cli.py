@@ -145,8 +145,9 @@ def format_form(result) -> list[str]:
     lines = [f"Form: {result.form_type}" + (f" ({keys})" if keys else ""),
              _row("form volume", f"{_g(result.volume)} m3 (starting geometry "
                   f"{_g(result.start_volume)} m3)"),
-             _row("reference optimum", f"{_g(result.reference_volume)} m3 (layout optimization, "
-                  "same domain and supports)"),
+             _row("reference optimum", f"{_g(result.reference_volume)} m3 (layout "
+                  + ("and geometry " if "history" in result.reference.stats else "")
+                  + "optimization, same domain and supports)"),
              _row("volume ratio", f"{_g(result.ratio, 4)} (form / reference)")]
     for name, value in result.geometry.items():
         lines.append(_row(name.replace("_", " "), f"{_g(value)} m"))
