@@ -6,12 +6,13 @@ from __future__ import annotations
 import dataclasses
 import json
 import math
+import os
 import re
 from pathlib import Path
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 from bridgeopt import BridgeScenario, Design, InputError, Material, PRESETS, SolveError
@@ -268,15 +269,15 @@ def test_form_solvers_for_a_study_return_designs():
 # ---------------------------------------------------------------- lower bound, optimization
 
 SPECS = st.sampled_from([
-    CableStayedForm(stays=4), CableStayedForm(pattern="harp", stays=4),
-    CableStayedForm(pattern="semi-fan", stays=3, span_to_height=6.0),
+    CableStayedForm(), CableStayedForm(pattern="harp"), CableStayedForm(pylons=2),
+    CableStayedForm(pattern="semi-fan", span_to_height=6.0),
     SuspensionForm(), SuspensionForm(sag_ratio=0.1), ArchForm(),
     ArchForm(variant="deck-arch"), ArchForm(rise_ratio=0.15, shape="parabolic")])
 MATERIALS = st.sampled_from([PRESETS["steel"], PRESETS["weightless-steel"], PRESETS["cfrp"],
                              PRESETS["cable-wire"]])
 
 
-@settings(max_examples=12, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=int(os.environ.get("BRIDGEOPT_FORM_EXAMPLES", "12")), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(spec=SPECS, material=MATERIALS, span=st.sampled_from([300.0, 900.0, 2500.0]),
        rise_ratio=st.sampled_from([0.2, 0.35]), arrangement=st.sampled_from(["repeating",
                                                                              "single"]))
@@ -287,10 +288,16 @@ def test_reference_is_a_lower_bound_and_optimization_never_adds_volume(spec, mat
 
     The reference is solved on a grid of 16 divisions; the forms are at least
     a few per cent above the continuum optimum, more than the grid's excess.
+    BRIDGEOPT_FORM_EXAMPLES sets the number of examples (12 by default; 250 were
+    run clean on 2026-12-02).
     """
     b = BridgeScenario(span=span, rise=rise_ratio * span, depth=0.1 * span, deck_load=2e5,
                        material=material, arrangement=arrangement, divisions=16)
-    result = solve_form(b, spec)
+    try:
+        result = solve_form(b, spec)
+    except SolveError as err:   # a form that cannot carry its own weight here: said so
+        assert err.status == "span-limit" and "pi*sigma/(rho*g)" in err.message
+        assume(False)
     assert result.volume >= result.reference_volume * (1 - 1e-9)
     assert result.volume <= result.start_volume * (1 + 1e-9)
     assert result.ratio >= 1.0

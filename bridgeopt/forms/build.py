@@ -105,14 +105,15 @@ def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
 
 
 def _check_self_weight(value: float, need: float, span: float, what: str, key: str) -> None:
+    """SolveError "span-limit" when ``what`` (``"a cable sag"``, ``"an arch rise"``) is too small."""
     if value <= need:
         raise SolveError("span-limit",
-                         f"a {what} of {value:.6g} m cannot carry its own weight and the deck over "
+                         f"{what} of {value:.6g} m cannot carry its own weight and the deck over "
                          f"a {span:.6g} m span: with self-weight it must exceed k L^2/8 = "
                          f"{need:.6g} m (k = rho*g/sigma; the limit of any span is "
                          f"pi*sigma/(rho*g) = {math.pi * span ** 2 / (8 * need):.6g} m)"
-                         f"; raise the {what} ({key}) or use a stronger, lighter material"
-                         if need > 0 else f"a {what} of {value:.6g} m is too small")
+                         f"; raise the {what.split()[-1]} ({key}) or use a stronger, lighter "
+                         "material" if need > 0 else f"{what} of {value:.6g} m is too small")
 
 
 def _stays(bridge: BridgeScenario, reach: float) -> int:
@@ -216,11 +217,11 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                              f"above the deck under towers at most {top:.6g} m high)")
         need = self_weight_sag(problem, "tension", span)
         if spec.sag_ratio is not None:
-            _check_self_weight(sag, need, span, "cable sag", "form.sag_ratio")
+            _check_self_weight(sag, need, span, "a cable sag", "form.sag_ratio")
         else:
             top = rise if spec.tower_height is None else tower
             low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(top - least, 1.02 * need, span, "cable sag", "bridge.rise")
+            _check_self_weight(top - least, 1.02 * need, span, "a cable sag", "bridge.rise")
             sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
                                     low, top - least, "bridge.rise", bridge.rise, "a cable sag")
         if spec.tower_height is None:
@@ -260,10 +261,10 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                 raise InputError("form.rise_ratio", spec.rise_ratio,
                                  f"<= {room / span:.6g} (the arch must fit within "
                                  f"{field} = {value:g} m)")
-            _check_self_weight(f, need, span, "arch rise", "form.rise_ratio")
+            _check_self_weight(f, need, span, "an arch rise", "form.rise_ratio")
         else:
             low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(room, 1.02 * need, span, "arch rise", field)
+            _check_self_weight(room, 1.02 * need, span, "an arch rise", field)
             f, rise_bounds = _free(start.get("rise", max(START_RISE_RATIO * span, 1.5 * need)),
                                    low, room, field, value, "an arch")
         if spec.shape == "free":
