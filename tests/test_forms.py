@@ -82,6 +82,7 @@ def test_parse_form_builds_each_spec_with_its_keys():
     ({"type": "cable-stayed", "span_to_height": -2.0}, "form.span_to_height", ("> 0",)),
     ({"type": "cable-stayed", "anchor_zone": 1.5}, "form.anchor_zone", ("(0, 1]",)),
     ({"type": "cable-stayed", "pylons": 0}, "form.pylons", ("pylons per span",)),
+    ({"type": "cable-stayed", "anchor_zone": 0.3}, "form.anchor_zone", ("'semi-fan'",)),
     ({"type": "suspension", "sag_ratio": 1.2}, "form.sag_ratio", ("sag over span",)),
     ({"type": "suspension", "spacing": 0.0}, "form.spacing", ("> 0 m",)),
     ({"type": "suspension", "shape": "round"}, "form.shape", ("'funicular'",)),

@@ -38,7 +38,7 @@ from ..problem import Problem, Support
 from .arch import arch_frame
 from .builder import available_heights, deck_level, funicular_heights
 from .cable_stayed import cable_stayed_frame
-from .specs import ArchForm, CableStayedForm, FormSpec, SuspensionForm
+from .specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
 from .suspension import suspension_frame
 
 __all__ = ["form_problem", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
@@ -197,7 +197,8 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
         return cable_stayed_frame(problem, pylons_x=_pylon_positions(bridge, spec.pylons),
                                   reach=reach, pattern=spec.pattern,
                                   stays=spec.stays or _stays(bridge, reach),
-                                  height=h, anchor_zone=spec.anchor_zone, height_bounds=bounds)
+                                  height=h, anchor_zone=spec.anchor_zone or ANCHOR_ZONE,
+                                  height_bounds=bounds)
     if isinstance(spec, SuspensionForm):
         least = CLEARANCE * rise
         tower_bounds = sag_bounds = height_bounds = None

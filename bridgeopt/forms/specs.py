@@ -32,6 +32,8 @@ ARCH_VARIANTS = ("deck-arch", "through-arch")
 
 #: Most stays per side, hangers or columns per half span (LP size stays small).
 MAX_PANELS = 200
+#: Semi-fan anchorage zone when none is given, as a part of the pylon height. [-]
+ANCHOR_ZONE = 0.25
 #: Most pylons per span.
 MAX_PYLONS = 20
 
@@ -93,9 +95,9 @@ class CableStayedForm:
     span_to_height : float, optional
         Distance between neighbouring pylons (span / pylons) over the pylon's
         height above the deck. [-]  Left out: the height is free (optimized).
-    anchor_zone : float
+    anchor_zone : float, optional
         Semi-fan only: the part of the pylon height, from the top down, over
-        which the stays anchor. [-]
+        which the stays anchor. [-]  Left out: 0.25.
     """
 
     type = "cable-stayed"
@@ -103,7 +105,7 @@ class CableStayedForm:
     stays: int | None = None
     pylons: int = 1
     span_to_height: float | None = None
-    anchor_zone: float = 0.25
+    anchor_zone: float | None = None
 
     def __post_init__(self) -> None:
         _choice("form.pattern", self.pattern, STAY_PATTERNS)
@@ -114,6 +116,10 @@ class CableStayedForm:
                "a number > 0 (pylon spacing over pylon height), or left out (height free)")
         _ratio("form.anchor_zone", self.anchor_zone,
                "a number in (0, 1] (part of the pylon height holding stay anchors)", 1.0 + 1e-12)
+        if self.anchor_zone is not None and self.pattern != "semi-fan":
+            raise InputError("form.anchor_zone", self.anchor_zone,
+                             "left out unless pattern = 'semi-fan' (fan stays all anchor at the "
+                             "pylon top, harp stays evenly up the pylon)")
 
     def to_dict(self) -> dict:
         return {"type": self.type, **_fields(self)}
