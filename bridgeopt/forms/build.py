@@ -168,8 +168,8 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
     ``start`` sets the starting value of free dimensions, by the names of
     :attr:`FormResult.geometry` (``pylon_height``, ``sag``, ``tower_height``,
     ``rise``) [m]; the defaults are :data:`START_SPAN_TO_HEIGHT`,
-    :data:`START_SAG_RATIO`, :data:`START_RISE_RATIO` and towers as high as the
-    domain allows; values are clipped to the bounds.
+    :data:`START_SAG_RATIO`, :data:`START_RISE_RATIO` and towers just tall
+    enough for the sag and the least clearance; values are clipped to the bounds.
 
     Raises
     ------
@@ -226,8 +226,9 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
             sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
                                     low, top - least, "bridge.rise", bridge.rise, "a cable sag")
         if spec.tower_height is None:
-            # the tower height is free: the starting cable hangs from the top of the domain
-            tower, _ = _free(start.get("tower_height", rise), sag + least, rise,
+            # the tower height is free: it starts as low as the sag and the least clearance
+            # allow (lifting the whole cable only lengthens hangers and towers)
+            tower, _ = _free(start.get("tower_height", sag + least), sag + least, rise,
                              "bridge.rise", bridge.rise, "towers")
             tower_bounds = (sag + least, rise)  # moves the whole cable (its clearance)
             if spec.shape == "free":

@@ -138,7 +138,7 @@ class SuspensionForm:
         Main-cable sag over span. [-]  Left out: the sag is free (optimized).
     tower_height : float, optional
         Height of the tower tops (main-cable saddles) above the deck. [m]  Left
-        out: the full rise of the design domain.
+        out: free (optimized within the rise of the design domain).
     shape : {"funicular", "parabolic", "free"}
         Cable nodes on the funicular polygon of the form's own loads (deck load
         and self-weight), or on a parabola, with the sag as the one free
