@@ -265,6 +265,8 @@ def test_reference_form_is_the_reference():
 def test_form_solvers_for_a_study_return_designs():
     d = FORM_SOLVERS["suspension"](bridge(), {"sag_ratio": 0.1})
     assert isinstance(d, Design) and set(np.unique(d.members.group)) >= {"cable", "hanger"}
+    assert_input_error(lambda: FORM_SOLVERS["arch"](bridge(), {"type": "suspension"}),
+                       "form.type", "'arch' for this solver")
 
 
 # ---------------------------------------------------------------- lower bound, optimization

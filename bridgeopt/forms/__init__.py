@@ -7,6 +7,11 @@ improved by geometry optimization within the form's rules.  See
 :func:`solve_form` and the ``[form]`` table in ``docs/scenario.md``.
 """
 
+from typing import Mapping
+
+from ..bridge import BridgeScenario
+from ..design import Design
+from ..errors import InputError
 from .specs import (FORM_TYPES, ArchForm, CableStayedForm, FormSpec, ReferenceForm,
                     SuspensionForm, form_keys, parse_form)
 from .build import build_form, form_problem
@@ -18,9 +23,12 @@ __all__ = ["FORM_TYPES", "ArchForm", "CableStayedForm", "FormSpec", "ReferenceFo
 
 
 def _solver(form_type: str):
-    def solve(bridge, options) -> "Design":  # noqa: F821
-        """Solve the ``{form_type}`` form of ``bridge`` with ``[form]`` keys ``options``."""
-        return solve_form(bridge, parse_form({"type": form_type, **dict(options)})).design
+    def solve(bridge: BridgeScenario, options: Mapping) -> Design:
+        """Solve this form type for ``bridge`` with ``[form]`` keys ``options``; the form's Design."""
+        options = dict(options)
+        if options.setdefault("type", form_type) != form_type:
+            raise InputError("form.type", options["type"], f"{form_type!r} for this solver")
+        return solve_form(bridge, parse_form(options)).design
     solve.__name__ = f"solve_{form_type.replace('-', '_')}"
     return solve
 
