@@ -149,8 +149,9 @@ def funicular_heights(x, *, start: float, end: float, node_loads, k_line: float,
     strength, h its length).  The segments are equal-strength elements of the
     line's material and sense, with a common horizontal force H; every node
     balances vertically, the mirror node with the mirror image of its segment.
-    Unknowns: the inner heights and H; solved by Newton's method (scipy) from
-    the funicular of the deck loads alone (:func:`funicular_profile`).
+    Unknowns: the inner heights and H; solved with scipy.optimize.root
+    (MINPACK's hybrid Powell method) starting from the funicular of the deck
+    loads alone (:func:`funicular_profile`).
 
     Returns
     -------
