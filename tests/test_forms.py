@@ -18,7 +18,7 @@ from hypothesis import strategies as st
 from bridgeopt import BridgeScenario, Design, InputError, Material, PRESETS, SolveError
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.cli import main
-from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, ArchForm, CableStayedForm, FormResult,
+from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, STUDY_FORMS, ArchForm, CableStayedForm, FormResult,
                              ReferenceForm, SuspensionForm, build_form, form_keys, form_problem,
                              parse_form, solve_form)
 from bridgeopt.scenario import parse_scenario
@@ -267,6 +267,21 @@ def test_form_solvers_for_a_study_return_designs():
     assert isinstance(d, Design) and set(np.unique(d.members.group)) >= {"cable", "hanger"}
     assert_input_error(lambda: FORM_SOLVERS["arch"](bridge(), {"type": "suspension"}),
                        "form.type", "'arch' for this solver")
+
+
+def test_study_solvers_ignore_other_forms_keys():
+    options = {"pylons": 2, "sag_ratio": 0.1, "rise_ratio": 0.15, "pattern": "fan"}
+    harp = STUDY_FORMS["cable-stayed harp"](bridge(), options)
+    assert (harp.members.group == "pier").sum() == 2          # pylons = 2 was used
+    stays = harp.members.group == "stay"
+    tops = np.maximum(harp.nodes[harp.members.start[stays], 1],
+                      harp.nodes[harp.members.end[stays], 1])
+    assert len(np.unique(np.round(tops, 6))) > 1              # harp, not the fan asked in options
+    arch = STUDY_FORMS["arch"](bridge(), options)
+    rib = arch.members.group == "arch rib"
+    z = arch.nodes[np.concatenate([arch.members.start[rib], arch.members.end[rib]]), 1]
+    assert np.ptp(z) == pytest.approx(0.15 * 600.0)
+    assert set(STUDY_FORMS) >= {"cable-stayed fan", "cable-stayed semi-fan", "suspension"}
 
 
 # ---------------------------------------------------------------- lower bound, optimization
