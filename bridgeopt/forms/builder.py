@@ -190,8 +190,9 @@ def funicular_heights(x, *, start: float, end: float, node_loads, k_line: float,
     v0 = np.concatenate([(z0[1:-1] - start) / scale_l, [np.log(h0 / scale_f)]])
     with np.errstate(all="ignore"):
         sol = root(residual, v0, method="hybr", options={"xtol": 1e-12})
-        ok = sol.success and np.all(np.isfinite(sol.x)) and \
-            np.abs(residual(sol.x)).max() < 1e-9
+        # judged by the residual: near round-off the solver may stop with a "no progress"
+        # flag at a solution that is as good as it gets
+        ok = np.all(np.isfinite(sol.x)) and np.abs(residual(sol.x)).max() < 1e-9
     if not ok:
         return None
     return heights(sol.x)
