@@ -168,8 +168,8 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
         out["form"] = {"type": form.form_type, "keys": form.spec.to_dict(),
                        "start_volume": form.start_volume, "geometry": form.geometry,
                        "quantities": form.quantities,
-                       "reference_stats": {k: v for k, v in form.reference.stats.items()
-                                           if k != "history"}}
+                       "reference_stats": {} if form.reference is None else {
+                           k: v for k, v in form.reference.stats.items() if k != "history"}}
     return _plain(out)
 
 
