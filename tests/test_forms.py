@@ -120,6 +120,12 @@ def test_forms_that_do_not_fit_the_domain_are_reported_when_read(form, field, wo
     assert_input_error(lambda: parse_scenario(bridge_file(**form)), field, *words)
 
 
+def test_a_free_pylon_needs_room_above_the_deck():
+    b = bridge(rise=10.0, divisions=60)            # one 10 m grid step above the deck
+    assert_input_error(lambda: build_form(b, CableStayedForm()), "bridge.rise",
+                       "room for a pylon", "needs more than 15 m")
+
+
 def test_deck_arch_needs_depth():
     b = bridge(depth=0.0)
     assert_input_error(lambda: build_form(b, ArchForm(variant="deck-arch")), "form.variant",
