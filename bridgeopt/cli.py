@@ -8,6 +8,11 @@ Commands
     Solve the bundled demo crossing.
 ``check FILE.toml``
     Read and check a scenario file without solving it.
+``sweep SWEEP.toml -o DIR [--jobs N] [--scheduler ADDRESS] [--retry-failed]``
+    Solve every combination of a sweep file; one row per case in DIR/results.csv
+    and DIR/results.parquet; resumable.
+``export FILE.toml|DESIGN.json -o DIR [--formats csv,json,svg,dxf]``
+    Write a solved design as CSV tables, JSON, SVG and DXF drawings.
 
 Exit status: 0 success; 2 bad input (a key, value or file; also a bad command
 line); 3 the solve failed (:class:`~bridgeopt.errors.SolveError`); 1 an
@@ -336,8 +341,155 @@ def _add_check(sub) -> None:
     p.set_defaults(func=_run_check)
 
 
+class _Progress:
+    """A progress bar on stderr (one line, redrawn on a terminal; a line per 5 % otherwise)."""
+
+    WIDTH = 30
+
+    def __init__(self, stream=None) -> None:
+        self.stream = stream or sys.stderr
+        self.tty = hasattr(self.stream, "isatty") and self.stream.isatty()
+        self.t0 = time.perf_counter()
+        self.start_done: int | None = None
+        self.failed = 0
+        self.last_step = -1
+
+    def __call__(self, done: int, total: int, case, row: dict) -> None:
+        if self.start_done is None:
+            self.start_done = done - 1
+        if row.get("status") != "ok":
+            self.failed += 1
+        elapsed = time.perf_counter() - self.t0
+        ran = done - self.start_done
+        rate = 60.0 * ran / elapsed if elapsed > 0 else 0.0
+        left = (total - done) * elapsed / ran if ran else 0.0
+        fill = int(self.WIDTH * done / total) if total else self.WIDTH
+        text = (f"[{'#' * fill}{'.' * (self.WIDTH - fill)}] {done}/{total} cases, "
+                f"{self.failed} failed, {rate:.1f} cases/min, {left / 60:.1f} min left")
+        if self.tty:
+            print("\r" + text, end="\n" if done == total else "", file=self.stream, flush=True)
+        else:
+            step = int(20 * done / total) if total else 20
+            if step != self.last_step or done == total:
+                self.last_step = step
+                print(text, file=self.stream, flush=True)
+
+
+def _run_sweep(args) -> int:
+    from .sweep import load_sweep, run_sweep
+
+    sweep = load_sweep(args.file)
+    if args.jobs is not None and args.jobs < 1:
+        raise InputError("--jobs", args.jobs, "a whole number >= 1 (worker processes)")
+    out = Path(args.output)
+    if out.exists() and not out.is_dir():
+        raise InputError("--output", str(out), "a folder (created if missing), not a file")
+    print(f"bridgeopt {__version__}: sweep {sweep.name}: {len(sweep)} cases"
+          + (f" over {', '.join(sweep.varied)}" if sweep.varied else ""))
+    print(f"  source: {sweep.source}")
+    where = f"Dask scheduler {args.scheduler}" if args.scheduler else "local processes"
+    outcome = run_sweep(sweep, out, jobs=args.jobs, scheduler=args.scheduler,
+                        retry_failed=args.retry_failed, progress=_Progress())
+    if outcome.skipped:
+        print(f"  {outcome.skipped} case(s) already finished in {out}: not run again")
+    print(f"  ran {len(outcome.ran)} case(s) on {where} ({outcome.workers} worker slot(s)) in "
+          f"{outcome.seconds:.1f} s ({outcome.cases_per_minute:.1f} cases per minute)")
+    print(f"  {outcome.total - outcome.failed} ok, {outcome.failed} failed (see the status and "
+          "error columns)")
+    print(f"  results: {out / 'results.csv'}, {out / 'results.parquet'} (columns in "
+          f"{out / 'README.txt'})")
+    print(CAUTIONS)
+    if outcome.interrupted:
+        _say_error(f"interrupted: {outcome.total - outcome.skipped - len(outcome.ran)} case(s) "
+                   "not run; run the same command again to finish them")
+        return 130
+    return EXIT_OK
+
+
+def _add_sweep(sub) -> None:
+    p = sub.add_parser("sweep", help="solve every combination of a sweep file",
+                       description="Solve every case of a sweep file (a scenario file in which "
+                                   "any value may be a list; see docs/formats.md) and write one "
+                                   "row per case to DIR/results.csv and DIR/results.parquet. "
+                                   "Finished cases are kept: running the same command again "
+                                   "solves only the missing ones.")
+    p.add_argument("file", metavar="SWEEP.toml", help="sweep file")
+    p.add_argument("-o", "--output", metavar="DIR", required=True,
+                   help="output folder (created if missing; re-used to resume)")
+    p.add_argument("--jobs", type=int, metavar="N",
+                   help="local worker processes (default: one per CPU)")
+    p.add_argument("--scheduler", metavar="ADDRESS",
+                   help="run on a Dask distributed cluster (e.g. tcp://host:8786) instead of "
+                        "local processes; needs the 'cluster' extra")
+    p.add_argument("--retry-failed", action="store_true",
+                   help="also run again the cases that failed in an earlier run")
+    p.set_defaults(func=_run_sweep)
+
+
+def _solve_design(scenario: Scenario, *, geometry_optimization: bool = False):
+    """(design, form or None) of a scenario, solved as ``bridgeopt solve`` solves it."""
+    if geometry_optimization:
+        scenario = scenario.with_solve(geometry_optimization=True)
+    with np.errstate(over="ignore"):
+        if scenario.form is not None and scenario.form.type != "reference":
+            reference = None
+            if scenario.solve.geometry_optimization:
+                reference = optimize_geometry(optimize_layout(
+                    form_problem(scenario.bridge, scenario.form),
+                    member_adding=scenario.solve.member_adding, batch=scenario.solve.batch))
+            form = solve_form(scenario.bridge, scenario.form, reference=reference,
+                              member_adding=scenario.solve.member_adding)
+            return scenario, form.design, form
+        return scenario, solve_scenario(scenario), None
+
+
+def _run_export(args) -> int:
+    from .outputs import export_design, parse_formats, read_design_json
+
+    t0 = time.perf_counter()
+    formats = parse_formats(args.formats)
+    out = Path(args.output)
+    if out.exists() and not out.is_dir():
+        raise InputError("--output", str(out), "a folder (created if missing), not a file")
+    scenario = form = None
+    if Path(args.file).suffix.lower() == ".json":
+        design = read_design_json(args.file)
+        print(f"bridgeopt {__version__}: export of the solved design {args.file}")
+    else:
+        scenario, design, form = _solve_design(load_scenario(args.file),
+                                               geometry_optimization=args.geometry_optimization)
+        print(f"bridgeopt {__version__}: {scenario.name} ({scenario.kind} scenario) solved: "
+              f"volume {_g(design.volume)} m3, {len(design.members)} members"
+              + (f"; {form.form_type} form, ratio {_g(form.ratio, 4)} to the reference optimum"
+                 if form is not None else ""))
+    try:
+        written = export_design(design, out, formats, scenario=scenario, form=form,
+                                wall_seconds=time.perf_counter() - t0)
+    except OSError as err:
+        raise InputError("--output", str(out), f"a writable folder ({err.strerror})") from None
+    for path in written:
+        print(f"  written: {path}")
+    print(CAUTIONS)
+    return EXIT_OK
+
+
+def _add_export(sub) -> None:
+    p = sub.add_parser("export", help="write a solved design as CSV, JSON, SVG and DXF",
+                       description="Solve a scenario file (or read the JSON of a solve) and "
+                                   "write members.csv, nodes.csv, design.json, design.svg and "
+                                   "design.dxf (see docs/formats.md).")
+    p.add_argument("file", metavar="FILE.toml|DESIGN.json",
+                   help="scenario file to solve, or the JSON of a solve")
+    p.add_argument("-o", "--output", metavar="DIR", required=True, help="output folder")
+    p.add_argument("--formats", default="csv,json,svg,dxf", metavar="LIST",
+                   help="comma-separated: csv, json, svg, dxf (default: all)")
+    p.add_argument("--geometry-optimization", action="store_true",
+                   help="rationalise the layout first (as solve --geometry-optimization)")
+    p.set_defaults(func=_run_export)
+
+
 #: Command registrars, in the order ``--help`` lists them.
-COMMANDS = (_add_solve, _add_demo, _add_check)
+COMMANDS = (_add_solve, _add_demo, _add_check, _add_sweep, _add_export)
 
 
 def build_parser() -> argparse.ArgumentParser:
