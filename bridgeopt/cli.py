@@ -13,6 +13,8 @@ Commands
     and DIR/results.parquet; resumable.
 ``export FILE.toml|DESIGN.json -o DIR [--formats csv,json,svg,dxf]``
     Write a solved design as CSV tables, JSON, SVG and DXF drawings.
+``judge FILE.toml LAYOUT [--members MEMBERS.csv]``
+    Size a proposed layout with the same LP and compare it with the reference optimum.
 
 Exit status: 0 success; 2 bad input (a key, value or file; also a bad command
 line); 3 the solve failed (:class:`~bridgeopt.errors.SolveError`); 1 an
@@ -488,8 +490,52 @@ def _add_export(sub) -> None:
     p.set_defaults(func=_run_export)
 
 
+def _run_judge(args) -> int:
+    from .judge import judge_problem, judge_proposal
+    from .proposal import read_proposal
+
+    scenario = load_scenario(args.file)
+    proposal = read_proposal(args.layout, args.members)
+    judgement = judge_proposal(judge_problem(scenario), proposal)
+    print(f"bridgeopt {__version__}: {scenario.name} ({scenario.kind} scenario): a proposed "
+          "layout judged against the reference optimum")
+    print(f"  source: {scenario.source}")
+    print("\n".join(format_inputs(scenario)))
+    print(judgement.summary(top=args.top))
+    if judgement.unused:
+        print(f"  {len(judgement.unused)} proposed member(s) carry no force and are left out")
+    if args.json:
+        from .export import design_to_dict, write_json
+
+        data = design_to_dict(judgement.design, scenario=scenario)
+        data.update({"reference_volume": judgement.reference_volume,
+                     "volume_ratio": judgement.ratio, "proposal": judgement.proposal.source,
+                     "excess": judgement.excess.to_dict(orient="records")})
+        write_json(_check_json_target(args.json), data)
+        print(f"JSON written to {args.json}")
+    return EXIT_OK
+
+
+def _add_judge(sub) -> None:
+    p = sub.add_parser("judge", help="size a proposed layout and compare it with the optimum",
+                       description="Read a proposed layout (nodes and members, CSV or JSON; see "
+                                   "docs/formats.md), size it with the same LP and self-weight "
+                                   "elements under the scenario's loads, and report its volume, "
+                                   "the reference optimum and the members carrying most of the "
+                                   "excess.")
+    p.add_argument("file", metavar="FILE.toml", help="scenario file (loads, supports, domain)")
+    p.add_argument("layout", metavar="LAYOUT",
+                   help="layout.json, or nodes.csv (with members.csv beside it), or a folder")
+    p.add_argument("--members", metavar="MEMBERS.csv",
+                   help="the members CSV (default: members.csv beside nodes.csv)")
+    p.add_argument("--top", type=int, default=5, metavar="N",
+                   help="members listed by excess (default 5)")
+    p.add_argument("--json", metavar="OUT.json", help="also write the sized proposal as JSON")
+    p.set_defaults(func=_run_judge)
+
+
 #: Command registrars, in the order ``--help`` lists them.
-COMMANDS = (_add_solve, _add_demo, _add_check, _add_sweep, _add_export)
+COMMANDS = (_add_solve, _add_demo, _add_check, _add_sweep, _add_export, _add_judge)
 
 
 def build_parser() -> argparse.ArgumentParser:
