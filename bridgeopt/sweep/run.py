@@ -30,6 +30,8 @@ __all__ = ["SweepOutcome", "run_sweep"]
 
 log = logging.getLogger(__name__)
 
+#: How long to try to reach a Dask scheduler. [s]
+CONNECT_TIMEOUT = 30.0
 #: Least time between rewrites of the result tables while a sweep runs. [s]
 TABLE_INTERVAL = 2.0
 
@@ -105,7 +107,8 @@ class _DaskPool:
                              "'bridgeopt[cluster]'") from None
         self._wait = distributed.wait
         try:
-            self._client = distributed.Client(address, timeout=30, set_as_default=False)
+            self._client = distributed.Client(address, timeout=CONNECT_TIMEOUT,
+                                              set_as_default=False)
         except (OSError, TimeoutError, ValueError) as err:
             raise InputError("--scheduler", address, "the address of a running Dask scheduler, "
                              f"e.g. tcp://host:8786 ({type(err).__name__}: {err})") from None
@@ -115,7 +118,8 @@ class _DaskPool:
         return self._client.submit(fn, *args, pure=False)
 
     def wait(self, futures):
-        return set(self._wait(list(futures), return_when="FIRST_COMPLETED").done)
+        with self._client.as_current():
+            return set(self._wait(list(futures), return_when="FIRST_COMPLETED").done)
 
     def close(self, *, cancel: bool = False) -> None:
         self._client.close()
