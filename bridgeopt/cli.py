@@ -396,8 +396,9 @@ def _run_sweep(args) -> int:
         print(f"  {outcome.skipped} case(s) already finished in {out}: not run again")
     print(f"  ran {len(outcome.ran)} case(s) on {where} ({outcome.workers} worker slot(s)) in "
           f"{outcome.seconds:.1f} s ({outcome.cases_per_minute:.1f} cases per minute)")
-    print(f"  {outcome.total - outcome.failed} ok, {outcome.failed} failed (see the status and "
-          "error columns)")
+    missing = outcome.total - sum(outcome.statuses.values())
+    print(f"  {outcome.statuses.get('ok', 0)} ok, {outcome.failed} failed (see the status and "
+          "error columns)" + (f", {missing} not run yet" if missing else ""))
     print(f"  results: {out / 'results.csv'}, {out / 'results.parquet'} (columns in "
           f"{out / 'README.txt'})")
     print(CAUTIONS)
@@ -405,6 +406,9 @@ def _run_sweep(args) -> int:
         _say_error(f"interrupted: {outcome.total - outcome.skipped - len(outcome.ran)} case(s) "
                    "not run; run the same command again to finish them")
         return 130
+    if outcome.total and outcome.failed == outcome.total:
+        _say_error(f"every case failed; the first: {outcome.first_error}")
+        return EXIT_INPUT if set(outcome.statuses) == {"input-error"} else EXIT_SOLVE
     return EXIT_OK
 
 

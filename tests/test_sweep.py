@@ -234,6 +234,38 @@ def test_a_killed_run_keeps_its_finished_cases(tmp_path):
     assert len(df) == len(sweep) and (df["status"] == "ok").all()
 
 
+def test_ctrl_c_stops_the_sweep_and_keeps_what_finished(tmp_path):
+    path = tmp_path / "slow.toml"
+    path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = [16, 20]")
+                    .replace("span = [400.0, 600.0]", "span = [400.0, 500.0, 600.0]"))
+    out = tmp_path / "out"
+    proc = subprocess.Popen([sys.executable, "-m", "bridgeopt", "sweep", str(path), "-o",
+                             str(out), "--jobs", "2"], stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, text=True,
+                            preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
+    journal = out / "journal.jsonl"
+    deadline = time.monotonic() + 60
+    while time.monotonic() < deadline and proc.poll() is None:
+        if journal.exists() and len(journal.read_text().splitlines()) >= 2:
+            proc.send_signal(signal.SIGINT)   # Ctrl-C, to the sweep's own process only
+            break
+        time.sleep(0.01)
+    _, err = proc.communicate(timeout=60)
+    assert proc.returncode == 130, err
+    assert "interrupted" in err and "run the same command again" in err
+    rows = pd.read_csv(out / "results.csv")
+    assert len(rows) == len(Journal(out).finished()) >= 2
+
+
+def test_every_case_bad_is_an_input_error_exit(tmp_path):
+    path = tmp_path / "bad.toml"
+    path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = [7, 9]"))
+    run = subprocess.run([sys.executable, "-m", "bridgeopt", "sweep", str(path), "-o",
+                          str(tmp_path / "out")], capture_output=True, text=True, timeout=120)
+    assert run.returncode == 2
+    assert "every case failed" in run.stderr and "bridge.divisions" in run.stderr
+
+
 def test_dask_cluster_gives_the_local_results(finished, tmp_path):
     if os.environ.get("CI"):
         import distributed   # CI installs the test extra, which has it

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import logging
 import os
+import signal
 import time
 from collections import deque
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
@@ -56,6 +57,10 @@ class SweepOutcome:
     workers : int
         Worker slots used (processes, or Dask worker threads).
     interrupted : bool
+    statuses : dict
+        Cases of the sweep per row status (``ok``, ``input-error`` ...).
+    first_error : str
+        The error of the first bad case in case order ("" when none).
     """
 
     total: int
@@ -66,6 +71,8 @@ class SweepOutcome:
     folder: Path = Path(".")
     workers: int = 0
     interrupted: bool = False
+    statuses: dict = field(default_factory=dict)
+    first_error: str = ""
 
     @property
     def cases_per_minute(self) -> float:
@@ -73,19 +80,27 @@ class SweepOutcome:
         return 60.0 * len(self.ran) / self.seconds if self.seconds > 0 else 0.0
 
 
+def _ignore_interrupt() -> None:
+    """Workers leave Ctrl-C to the parent, which stops the sweep and keeps what finished."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+
+
 class _LocalPool:
     """Worker processes on this machine (concurrent.futures)."""
 
     def __init__(self, jobs: int) -> None:
         self.slots = jobs
-        self._pool = ProcessPoolExecutor(max_workers=jobs)
+        self._pool = self._start()
+
+    def _start(self) -> ProcessPoolExecutor:
+        return ProcessPoolExecutor(max_workers=self.slots, initializer=_ignore_interrupt)
 
     def submit(self, fn, *args):
         try:
             return self._pool.submit(fn, *args)
         except BrokenProcessPool:  # a worker died earlier: start afresh
             self._pool.shutdown(wait=False, cancel_futures=True)
-            self._pool = ProcessPoolExecutor(max_workers=self.slots)
+            self._pool = self._start()
             return self._pool.submit(fn, *args)
 
     @staticmethod
@@ -251,6 +266,11 @@ def run_sweep(sweep: Sweep, folder: str | os.PathLike, *, jobs: int | None = Non
         journal.close()
         write_tables(sweep, journal)
         outcome.seconds = time.perf_counter() - t0
-        outcome.failed = sum(1 for c in sweep.cases if c.key in journal.rows
-                             and journal.rows[c.key].get("status") != "ok")
+        rows = [journal.rows[c.key] for c in sweep.cases if c.key in journal.rows]
+        for row in rows:
+            status = row.get("status", "error")
+            outcome.statuses[status] = outcome.statuses.get(status, 0) + 1
+            if status != "ok" and not outcome.first_error:
+                outcome.first_error = row.get("error", "")
+        outcome.failed = sum(n for k, n in outcome.statuses.items() if k != "ok")
     return outcome
