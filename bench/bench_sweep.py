@@ -47,7 +47,8 @@ def main() -> None:
     print(f"sum of per-case solve times {df['seconds'].sum():.1f} s "
           f"(x{df['seconds'].sum() / seconds:.2f} of the wall time)")
     df["form"] = df["form.type"] + df["form.pattern"].fillna("").map(lambda p: f" {p}" if p else "")
-    table = df.groupby("form").agg(cases=("case", "size"), ok=("status", lambda s: (s == "ok").sum()),
+    table = df.groupby("form").agg(cases=("case", "size"),
+                                   ok=("status", lambda s: (s == "ok").sum()),
                                    median_ratio=("ratio", "median"),
                                    median_seconds=("seconds", "median"),
                                    max_seconds=("seconds", "max"))
@@ -76,8 +77,9 @@ def main() -> None:
     print(f"killed after {before} cases; re-run in {seconds2:.1f} s: " + "; ".join(
         s.strip() for s in last))
     again = pd.read_csv(killed / "results.csv")
+    change = (again["volume_m3"] - df["volume_m3"]).abs().fillna(0)
     same = (again["status"] == df["status"]).all() and (
-        (again["volume_m3"] - df["volume_m3"]).abs().fillna(0) <= 1e-9 * df["volume_m3"].abs().fillna(1)).all()
+        change <= 1e-9 * df["volume_m3"].abs().fillna(1)).all()
     print(f"resumed results equal the uninterrupted run: {bool(same)}")
 
 

@@ -57,7 +57,7 @@ log = logging.getLogger(__name__)
 
 
 def judge_problem(scenario) -> Problem:
-    """The problem a proposal is judged on: a bridge form's problem (its supports), else the scenario's."""
+    """The problem a proposal is judged on: a bridge form's problem, else the scenario's."""
     if scenario.bridge is not None and scenario.form is not None:
         from .forms import form_problem
 
@@ -131,8 +131,11 @@ def unbalanced_nodes(problem: Problem, proposal: Proposal) -> list[int]:
     bad = []
     for i in range(n):
         at = np.concatenate([d[proposal.start == i], d[proposal.end == i]])
-        dirs = [v for v in at]
-        dirs += [np.array([1.0, 0.0])] * (2 * i in rows) + [np.array([0.0, 1.0])] * (2 * i + 1 in rows)
+        dirs = list(at)
+        if 2 * i in rows:
+            dirs.append(np.array([1.0, 0.0]))
+        if 2 * i + 1 in rows:
+            dirs.append(np.array([0.0, 1.0]))
         if not dirs:
             if np.abs(f[i]).max() > 1e-12 * scale:
                 bad.append(i)
@@ -272,9 +275,9 @@ def judge_proposal(problem: Problem, proposal: Proposal) -> Judgement:
                 "support": "a support stands"}.get(err.field.split("[")[0])
         if what is None:
             raise
+        nearest = err.valid.replace("frame", "layout")
         raise InputError("layout.nodes", err.value, f"a node of the proposed layout at this "
-                         f"point, where {what} ({err.field}); {err.valid.replace('frame', 'layout')}"
-                         ) from None
+                         f"point, where {what} ({err.field}); {nearest}") from None
     except SolveError as err:
         if err.status != "infeasible":
             raise
@@ -313,6 +316,11 @@ def judge_proposal(problem: Problem, proposal: Proposal) -> Judgement:
     unused = tuple(j for j, p in enumerate(zip(proposal.start.tolist(), proposal.end.tolist()))
                    if tuple(sorted(p)) not in pairs)
     ratio = design.volume / reference.volume if reference.volume > 0 else math.nan
+    if ratio < 1 - 1e-6:
+        log.warning("the proposal (%.6g m3) is lighter than the reference optimum on this grid "
+                    "(%.6g m3): its nodes off the grid (or outside the domain) are not open to "
+                    "the reference; use a finer grid (more divisions) for a fair bound",
+                    design.volume, reference.volume)
     return Judgement(proposal=proposal, design=design, reference=reference, volume=design.volume,
                      reference_volume=reference.volume, ratio=ratio, excess=table,
                      unused=unused)

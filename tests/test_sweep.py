@@ -90,6 +90,8 @@ def test_values_that_are_lists_in_a_scenario_are_swept_by_lists_of_them():
     (lambda d: d.update(materal={"preset": "steel"}), "materal"),
     (lambda d: d["form"][1].update(sag_ratio=0.1), "form.sag_ratio"),
     (lambda d: d["bridge"].update(span=[]), "bridge.span"),
+    # a list of form types takes only the keys every listed type has
+    (lambda d: d["form"][1].update(type=["cable-stayed", "arch"]), "form.pattern"),
 ])
 def test_bad_keys_and_empty_lists_are_named(change, field):
     data = sweep_dict()

@@ -129,7 +129,9 @@ def check_sweep_keys(data: Mapping) -> None:
             continue
         for entry in _entries(parent[path[-1]], path):
             if table_kind == "form":
-                valid = tuple(dict.fromkeys(k for t in _form_types(entry) for k in form_keys(t)))
+                kinds = _form_types(entry)  # keys every listed type has
+                valid = tuple(k for k in form_keys(kinds[0])
+                              if all(k in form_keys(t) for t in kinds))
                 _check_keys(entry, path, valid, "[form] with type = "
                             + " or ".join(map(repr, _form_types(entry))))
             else:
