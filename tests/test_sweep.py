@@ -197,6 +197,23 @@ def test_rerun_runs_only_the_missing_cases(finished, tmp_path):
     assert np.allclose(first["volume_m3"], second["volume_m3"], equal_nan=True)
 
 
+def test_a_second_run_on_the_same_folder_is_refused(finished, tmp_path):
+    sweep = finished[0]
+    # another process holds the folder, as a running sweep would
+    holder = subprocess.Popen(
+        [sys.executable, "-c", "import sys, time; from bridgeopt.sweep import Journal; "
+         f"j = Journal({str(tmp_path / 'busy')!r}, lock=True); print('held', flush=True); "
+         "sys.stdin.read()"], stdin=subprocess.PIPE, stdout=subprocess.PIPE, text=True)
+    try:
+        assert holder.stdout.readline().strip() == "held"
+        with pytest.raises(InputError) as err:
+            run_sweep(sweep, tmp_path / "busy", jobs=1)
+        assert err.value.field == "--output"
+    finally:
+        holder.communicate("", timeout=30)
+    assert len(run_sweep(sweep, tmp_path / "busy", jobs=2).ran) == len(sweep)  # free again
+
+
 def test_retry_failed_runs_the_bad_cases_again(finished, tmp_path):
     sweep, _, out, _ = finished
     folder = tmp_path / "retry"

@@ -195,7 +195,7 @@ def run_sweep(sweep: Sweep, folder: str | os.PathLike, *, jobs: int | None = Non
     SweepOutcome
     """
     t0 = time.perf_counter()
-    journal = Journal(folder)
+    journal = Journal(folder, lock=True)
     finished = journal.finished(failed_too=not retry_failed)
     todo = [c for c in sweep.cases if c.key not in finished]
     outcome = SweepOutcome(total=len(sweep), skipped=len(sweep) - len(todo),

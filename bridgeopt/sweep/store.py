@@ -19,12 +19,14 @@ from pathlib import Path
 from typing import Any, Callable
 
 from ..cautions import CAUTION_LINES, CAUTIONS
+from ..errors import InputError
 from .cases import RESULT_COLUMNS
 from .expand import Sweep
 
 __all__ = ["Journal", "write_tables", "results_frame", "JOURNAL", "CSV", "PARQUET", "README"]
 
 JOURNAL, CSV, PARQUET, README = "journal.jsonl", "results.csv", "results.parquet", "README.txt"
+LOCK = ".lock"
 
 
 def _plain(value: Any) -> Any:
@@ -44,9 +46,17 @@ class Journal:
         The sweep's output folder (created if missing).
     """
 
-    def __init__(self, folder: str | os.PathLike) -> None:
+    def __init__(self, folder: str | os.PathLike, *, lock: bool = False) -> None:
         self.folder = Path(folder)
-        self.folder.mkdir(parents=True, exist_ok=True)
+        self._fh = None
+        self._lock = None
+        try:
+            self.folder.mkdir(parents=True, exist_ok=True)
+        except OSError as err:
+            raise InputError("--output", str(folder), f"a folder that can be created "
+                             f"({err.strerror})") from None
+        if lock:
+            self._take_lock()
         self.path = self.folder / JOURNAL
         self.rows: dict[str, dict] = {}
         if self.path.exists():
@@ -57,7 +67,21 @@ class Journal:
                         self.rows[entry["key"]] = entry["row"]
                     except (json.JSONDecodeError, KeyError, TypeError):
                         continue  # a line cut short by a killed run
-        self._fh = None
+
+    def _take_lock(self) -> None:
+        """Refuse a second run writing to the same folder at the same time."""
+        import fcntl
+
+        fh = open(self.folder / LOCK, "a")
+        try:
+            # a POSIX record lock: held by this process only, not by the worker processes
+            # it forks, so it ends with the process however it ends
+            fcntl.lockf(fh.fileno(), fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except OSError:
+            fh.close()
+            raise InputError("--output", str(self.folder), "a folder no other sweep is "
+                             "writing to (another run holds its lock)") from None
+        self._lock = fh
 
     def finished(self, *, failed_too: bool = True) -> set[str]:
         """Keys of finished cases (with ``failed_too=False``, only those that succeeded)."""
@@ -76,9 +100,13 @@ class Journal:
         self.rows[key] = row
 
     def close(self) -> None:
+        """Close the journal and release the folder's lock."""
         if self._fh is not None:
             self._fh.close()
             self._fh = None
+        if self._lock is not None:
+            self._lock.close()
+            self._lock = None
 
 
 def results_frame(sweep: Sweep, rows: dict[str, dict]):
