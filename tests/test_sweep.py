@@ -80,6 +80,7 @@ def test_values_that_are_lists_in_a_scenario_are_swept_by_lists_of_them():
               "load": [{"at": [4.0, 1.0], "force": [0.0, -1.0e6]}]}
     sweep = expand_sweep(layout)
     assert len(sweep) == 2     # the domain's x = [0, 4] is one value, not two cases
+    assert sweep.varied == ("support[1].at",)
     assert {tuple(c.data["support"][1]["at"]) for c in sweep.cases} == {(0.0, 2.0), (0.0, 1.5)}
     for case in sweep.cases:
         parse_scenario(case.data)  # each case is a valid scenario

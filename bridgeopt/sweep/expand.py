@@ -191,12 +191,18 @@ def case_key(data: Mapping) -> str:
 
 
 def flatten(data: Mapping, prefix: str = "") -> dict[str, Any]:
-    """A scenario dict as one level of dotted keys (lists and arrays of tables as JSON text)."""
+    """A scenario dict as one level of dotted keys, as messages name them (``support[1].at``).
+
+    Values that are lists (points, outlines) become JSON text.
+    """
     out: dict[str, Any] = {}
     for key, value in data.items():
         name = f"{prefix}{key}"
         if isinstance(value, Mapping):
             out.update(flatten(value, name + "."))
+        elif isinstance(value, list) and value and all(isinstance(v, Mapping) for v in value):
+            for i, entry in enumerate(value):
+                out.update(flatten(entry, f"{name}[{i}]."))
         elif isinstance(value, list):
             out[name] = json.dumps(value)
         else:
