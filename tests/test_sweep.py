@@ -304,6 +304,25 @@ def test_dask_cluster_gives_the_local_results(finished, tmp_path):
         assert np.allclose(remote[col], local[col], rtol=1e-9, equal_nan=True), col
 
 
+def test_cli_scheduler_option(finished, tmp_path, capsys):
+    if os.environ.get("CI"):
+        import distributed
+    else:
+        distributed = pytest.importorskip("distributed")
+    from bridgeopt.cli import main
+
+    path = tmp_path / "options.toml"
+    path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = 8")
+                    .replace("span = [400.0, 600.0]", "span = 400.0"))
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=False,
+                                  protocol="tcp", dashboard_address=None) as cluster:
+        status = main(["sweep", str(path), "-o", str(tmp_path / "out"), "--scheduler",
+                       cluster.scheduler_address])
+    out = capsys.readouterr().out
+    assert status == 0
+    assert f"Dask scheduler {cluster.scheduler_address}" in out and "3 ok, 0 failed" in out
+
+
 def test_bad_scheduler_address_is_an_input_error(finished, tmp_path, monkeypatch):
     pytest.importorskip("distributed")
     monkeypatch.setattr("bridgeopt.sweep.run.CONNECT_TIMEOUT", 1.0)
