@@ -394,8 +394,13 @@ def _run_sweep(args) -> int:
                         retry_failed=args.retry_failed, progress=_Progress())
     if outcome.skipped:
         print(f"  {outcome.skipped} case(s) already finished in {out}: not run again")
-    print(f"  ran {len(outcome.ran)} case(s) on {where} ({outcome.workers} worker slot(s)) in "
-          f"{outcome.seconds:.1f} s ({outcome.cases_per_minute:.1f} cases per minute)")
+    if outcome.workers:
+        print(f"  ran {len(outcome.ran)} case(s) on {where} ({outcome.workers} worker slot(s)) "
+              f"in {outcome.seconds:.1f} s ({outcome.cases_per_minute:.1f} cases per minute)")
+    elif outcome.ran:
+        print(f"  {len(outcome.ran)} case(s) checked and recorded as bad before any solve")
+    else:
+        print("  nothing left to run")
     missing = outcome.total - sum(outcome.statuses.values())
     print(f"  {outcome.statuses.get('ok', 0)} ok, {outcome.failed} failed (see the status and "
           "error columns)" + (f", {missing} not run yet" if missing else ""))
