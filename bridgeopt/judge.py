@@ -76,6 +76,14 @@ def _supports_at_nodes(problem: Problem, nodes: np.ndarray) -> Problem:
         raise InputError("layout.nodes", "no node at a support",
                          f"a node at one of the scenario's supports ({where} m) or on a mirror "
                          f"line (x = {', '.join(f'{m:.6g}' for m in problem.mirror_lines)} m)")
+    if not kept and problem.total_applied_load() > 0:
+        # mirror lines hold horizontally only: the vertical load needs a support
+        vertical = [s for s in problem.supports if "z" in s.fix]
+        if vertical:
+            where = ", ".join(f"[{s.at[0]:.6g}, {s.at[1]:.6g}]" for s in vertical[:4])
+            raise InputError("layout.nodes", "no node at a vertical support",
+                             f"a node at one of the scenario's supports that take vertical "
+                             f"load ({where} m)")
     if len(kept) < len(problem.supports):
         log.info("%d of the scenario's supports have no node of the proposal and are not used",
                  len(problem.supports) - len(kept))

@@ -103,6 +103,15 @@ def _build(ids, xz, members, source: str) -> Proposal:
         raise InputError("nodes", len(ids), "at least 2 nodes")
     if not members:
         raise InputError("members", 0, "at least 1 member")
+    xz = np.array(xz, dtype=float).reshape(-1, 2)
+    tol = 1e-9 * max(float(np.ptp(xz, axis=0).max()), 1.0)
+    order = np.lexsort((xz[:, 1], xz[:, 0]))
+    close = np.nonzero(np.hypot(*np.diff(xz[order], axis=0).T) <= tol)[0]
+    if len(close):
+        a, b = order[close[0]], order[close[0] + 1]
+        raise InputError(f"nodes[{max(a, b)}]", ids[max(a, b)], f"a node at its own position "
+                         f"(node {ids[min(a, b)]} is at the same point, [{xz[a, 0]:.6g}, "
+                         f"{xz[a, 1]:.6g}] m)")
     start, end, group, senses = [], [], [], []
     for a, b, g, s, field in members:
         for key, v in (("start", a), ("end", b)):

@@ -124,6 +124,16 @@ def test_a_layout_without_a_node_at_the_load_is_an_input_error():
     assert err.value.field == "layout.nodes" and "load[0].at" in str(err.value)
 
 
+def test_a_bridge_layout_without_its_pier_support_is_an_input_error(bridge_reference):
+    scenario, _, _ = bridge_reference
+    # a deck on the mirror lines only: nothing takes the vertical load at the pier's foot
+    nodes = [[40.0 * i, 0.0] for i in range(6)]
+    layout = {"nodes": nodes, "members": [[i, i + 1] for i in range(5)]}
+    with pytest.raises(InputError) as err:
+        judge_proposal(judge_problem(scenario), proposal_from_dict(layout))
+    assert err.value.field == "layout.nodes" and "[0, -40]" in str(err.value)
+
+
 @pytest.mark.parametrize("layout, field", [
     ({"nodes": [[0, 0], [1, 1]], "members": [[0, 5]]}, "members[0].end"),
     ({"nodes": [[0, 0], [1, 1]], "members": [{"start": 0, "end": 1, "sense": "pull"}]},
@@ -131,6 +141,7 @@ def test_a_layout_without_a_node_at_the_load_is_an_input_error():
     ({"nodes": [[0, "x"], [1, 1]], "members": [[0, 1]]}, "nodes[0].z"),
     ({"nodes": [{"id": 1, "x": 0, "z": 0}, {"id": 1, "x": 1, "z": 0}], "members": [[1, 1]]},
      "nodes[1].id"),
+    ({"nodes": [[0, 0], [1, 1], [0, 0]], "members": [[0, 1]]}, "nodes[2]"),
 ])
 def test_bad_layouts_name_the_field(layout, field):
     with pytest.raises(InputError) as err:
