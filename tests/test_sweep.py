@@ -163,6 +163,21 @@ def test_results_agree_with_direct_solves(finished):
         assert np.allclose(forms["ratio"], forms["volume_m3"] / forms["reference_volume_m3"])
 
 
+def test_a_case_that_cannot_stand_is_recorded_and_the_rest_run(tmp_path):
+    # steel, 400 m span: a cable needs a sag above k L^2/8 = 7850 * 9.80665 / 355e6 * 400^2 / 8
+    # = 4.3 m to carry its own weight (parabolic statics, common practice); a sag ratio of
+    # 0.005 gives 2 m, 0.1 gives 40 m
+    data = {"name": "sag check", "bridge": {**BRIDGE, "span": 400.0},
+            "material": {"preset": "steel"},
+            "form": {"type": "suspension", "sag_ratio": [0.005, 0.1]}}
+    outcome = run_sweep(expand_sweep(data), tmp_path, jobs=2)
+    df = pd.read_csv(tmp_path / "results.csv")
+    assert list(df["form.sag_ratio"]) == [0.005, 0.1]
+    assert list(df["status"]) == ["solve-failed", "ok"]
+    assert "span-limit" in df["error"].iloc[0]
+    assert outcome.failed == 1 and df["ratio"].iloc[1] >= 1
+
+
 def test_parquet_matches_csv_and_tables_carry_the_cautions(finished):
     _, _, out, _ = finished
     csv = pd.read_csv(out / "results.csv")

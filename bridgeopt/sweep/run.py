@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable
 
-from ..errors import InputError
+from ..errors import InputError, SolveError
 from ..scenario import parse_scenario
 from .cases import error_row, reference_group, solve_case, solve_reference
 from .expand import Case, Sweep
@@ -148,8 +148,13 @@ def _plan(cases: list[Case], journal: Journal, outcome: SweepOutcome, progress, 
         try:
             scenario = parse_scenario(case.data)
             key, provides = reference_group(scenario)
-        except InputError as err:
-            row = error_row("input-error", str(err))
+        except Exception as err:  # a bad case is recorded, never raised
+            if isinstance(err, InputError):
+                row = error_row("input-error", str(err))
+            elif isinstance(err, SolveError):
+                row = error_row("solve-failed", f"{err.status}: {err.message}")
+            else:
+                row = error_row("error", f"{type(err).__name__}: {err}")
             journal.append(case.key, row)
             outcome.ran.append(case.key)
             done[0] += 1
