@@ -511,8 +511,6 @@ def _run_judge(args) -> int:
     print(f"  source: {scenario.source}")
     print("\n".join(format_inputs(scenario)))
     print(judgement.summary(top=args.top))
-    if judgement.unused:
-        print(f"  {len(judgement.unused)} proposed member(s) carry no force and are left out")
     if args.json:
         from .export import design_to_dict, write_json
 

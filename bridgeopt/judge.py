@@ -226,10 +226,17 @@ class Judgement:
         if len(rows) and self.volume > self.reference_volume * (1 + 1e-9):
             lines.append(f"  members carrying most of the excess (excess = volume less the work "
                          f"of the member's forces in the optimum's virtual displacements):")
+            width = max(len(f"{r['start']} - {r['end']}") for _, r in rows.iterrows())
             for _, r in rows.iterrows():
-                lines.append(f"    {r['start']} - {r['end']:<10} {r['group']:<10} {r['sense']:<12}"
+                pair = f"{r['start']} - {r['end']}"
+                lines.append(f"    {pair:<{width}}  {r['group']:<10} {r['sense']:<12}"
                              f" volume {r['volume_m3']:.4g} m3, excess {r['excess_m3']:.4g} m3 "
                              f"({100 * r['share']:.0f} %)")
+        if self.unused:
+            p = self.proposal
+            names = ", ".join(f"{p.ids[p.start[j]]} - {p.ids[p.end[j]]}" for j in self.unused[:8])
+            more = f" and {len(self.unused) - 8} more" if len(self.unused) > 8 else ""
+            lines.append(f"  carrying no force (left out): {names}{more}")
         lines.append(CAUTIONS)
         return "\n".join(lines)
 

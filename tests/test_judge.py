@@ -170,3 +170,18 @@ def test_cli_judge(tmp_path, bridge_reference):
                           str(tmp_path)], capture_output=True, text=True, timeout=120)
     assert bad.returncode == 3
     assert "C (x = 4 m, z = 1 m)" in bad.stderr
+
+
+def test_the_bundled_example_proposal():
+    from pathlib import Path
+
+    from bridgeopt.scenario import load_scenario
+
+    root = Path(__file__).resolve().parents[1]
+    scenario = load_scenario(root / "studies" / "scenarios" / "form_cable_stayed.toml")
+    proposal = read_proposal(root / "studies" / "proposals" / "harrowmere_fan.json")
+    judged = judge_proposal(judge_problem(scenario), proposal)
+    assert judged.ratio > 1        # the reference bounds every layout in the domain
+    # every node is on the 50 m grid: the excesses add up to the volume difference
+    assert judged.excess["excess_m3"].sum() == pytest.approx(
+        judged.volume - judged.reference_volume, rel=1e-6)
