@@ -120,14 +120,9 @@ def check_sweep_keys(data: Mapping) -> None:
     _check_keys(data, (), KEYS[kind], "a bridge sweep file" if kind == "bridge-file"
                 else "a layout sweep file")
     for path, table_kind in list(SINGLE_TABLES.items()) + list(ARRAY_TABLES.items()):
-        parent = data
-        for part in path[:-1]:
-            parent = parent.get(part, {}) if isinstance(parent, Mapping) else {}
-            if not isinstance(parent, Mapping):  # domain given as alternatives
-                parent = {}
-        if not isinstance(parent, Mapping) or path[-1] not in parent:
-            continue
-        for entry in _entries(parent[path[-1]], path):
+        if len(path) > 1 or path[0] not in data:
+            continue  # [[domain.excluded]] is checked with each [domain] below
+        for entry in _entries(data[path[0]], path):
             if table_kind == "form":
                 kinds = _form_types(entry)  # keys every listed type has
                 valid = tuple(k for k in form_keys(kinds[0])
