@@ -5,7 +5,9 @@ Runs ``bridgeopt sweep studies/sweeps/meeting_grid.toml -o bench/out/meeting_gri
 per minute, then kills a second run part way and re-runs it to show that only
 the missing cases run.  Record the figures in docs/benchmarks.md.
 
-Usage: ``.venv/bin/python bench/bench_sweep.py [JOBS]`` (default 2).
+Usage: ``.venv/bin/python bench/bench_sweep.py [JOBS] [--dask]`` (default 2 jobs).  With
+``--dask`` the same sweep also runs on a local Dask cluster of JOBS single-threaded worker
+processes (``bridgeopt sweep ... --scheduler ADDRESS``), compared with the local run.
 """
 
 from __future__ import annotations
@@ -25,15 +27,35 @@ SWEEP = ROOT / "studies" / "sweeps" / "meeting_grid.toml"
 OUT = ROOT / "bench" / "out"
 
 
-def sweep(out: Path, jobs: int) -> tuple[float, subprocess.CompletedProcess]:
+def sweep(out: Path, jobs: int, *extra: str) -> tuple[float, subprocess.CompletedProcess]:
     t0 = time.perf_counter()
     run = subprocess.run([sys.executable, "-m", "bridgeopt", "sweep", str(SWEEP), "-o",
-                          str(out), "--jobs", str(jobs)], capture_output=True, text=True)
+                          str(out), "--jobs", str(jobs), *extra], capture_output=True, text=True)
     return time.perf_counter() - t0, run
 
 
+def on_dask(jobs: int, local: pd.DataFrame) -> None:
+    from distributed import LocalCluster
+
+    out = OUT / "meeting_grid_dask"
+    shutil.rmtree(out, ignore_errors=True)
+    with LocalCluster(n_workers=jobs, threads_per_worker=1, processes=True,
+                      dashboard_address=None) as cluster:
+        seconds, run = sweep(out, jobs, "--scheduler", cluster.scheduler_address)
+    if run.returncode != 0:
+        sys.exit(run.stderr)
+    df = pd.read_csv(out / "results.csv")
+    change = (df["volume_m3"] - local["volume_m3"]).abs().fillna(0)
+    same = (df["status"] == local["status"]).all() and (
+        change <= 1e-9 * local["volume_m3"].abs().fillna(1)).all()
+    print(f"Dask, {jobs} worker processes: {len(df)} cases in {seconds:.1f} s wall "
+          f"(cluster already running): {60 * len(df) / seconds:.1f} cases per minute; "
+          f"results equal the local run: {bool(same)}")
+
+
 def main() -> None:
-    jobs = int(sys.argv[1]) if len(sys.argv) > 1 else 2
+    args = [a for a in sys.argv[1:] if a != "--dask"]
+    jobs = int(args[0]) if args else 2
     out = OUT / "meeting_grid"
     shutil.rmtree(out, ignore_errors=True)
     print(f"cpus {os.cpu_count()}, load average before {os.getloadavg()[0]:.2f}, jobs {jobs}")
@@ -81,6 +103,8 @@ def main() -> None:
     same = (again["status"] == df["status"]).all() and (
         change <= 1e-9 * df["volume_m3"].abs().fillna(1)).all()
     print(f"resumed results equal the uninterrupted run: {bool(same)}")
+    if "--dask" in sys.argv:
+        on_dask(jobs, df)
 
 
 if __name__ == "__main__":
