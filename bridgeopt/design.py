@@ -162,10 +162,14 @@ class Design:
 
         df = pd.DataFrame({"x_m": self.nodes[:, 0], "z_m": self.nodes[:, 1],
                            "load_x_N": self.loads[:, 0], "load_z_N": self.loads[:, 1]})
-        df["reaction_x_N"] = 0.0
-        df["reaction_z_N"] = 0.0
-        for node, rx, rz in self.reactions:
-            df.loc[int(node), ["reaction_x_N", "reaction_z_N"]] += (rx, rz)
+        rx = np.zeros(len(self.nodes))
+        rz = np.zeros(len(self.nodes))
+        if len(self.reactions):
+            idx = self.reactions[:, 0].astype(np.int64)
+            np.add.at(rx, idx, self.reactions[:, 1])
+            np.add.at(rz, idx, self.reactions[:, 2])
+        df["reaction_x_N"] = rx
+        df["reaction_z_N"] = rz
         return df
 
     def summary(self) -> str:
