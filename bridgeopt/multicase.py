@@ -96,6 +96,14 @@ log = logging.getLogger(__name__)
 MAX_FULL_COLUMNS = 400_000
 #: Safety stop on member-adding rounds.
 MAX_ROUNDS = 200
+#: Member adding solves each round by the interior point method without
+#: crossover (seen 20 times faster than simplex on these degenerate LPs), adds
+#: the members that violate the dual check, and stops once the proven relative
+#: optimality gap 1 - 1/max(work/cost) is below GAP_TOL (the dual check is
+#: homogeneous in the duals: dividing them by the largest ratio makes every
+#: column dual feasible and bounds the optimum from below).  The last LP is then
+#: solved again with crossover, to a vertex, for clean member forces.
+GAP_TOL = 1e-6
 
 
 @dataclass(frozen=True)
@@ -145,7 +153,8 @@ class _Model:
         self.n2 = data.loads.shape[1]
         self.in_lp = np.zeros((len(data.a), len(data.groups)), dtype=bool)
 
-    def solve(self):
+    def solve(self, exact: bool = True):
+        """Solve the LP over the members in it; ``exact=False``: interior point, no crossover."""
         d, K, n2 = self.data, self.K, self.n2
         pair, grp = np.nonzero(self.in_lp)
         m = len(pair)
@@ -208,6 +217,8 @@ class _Model:
         lp.a_matrix_.index_ = r.astype(np.int32)
         lp.a_matrix_.value_ = v
         h = _silent_highs(0)
+        h.setOptionValue("solver", "ipm")
+        h.setOptionValue("run_crossover", "on" if exact else "off")
         h.passModel(lp)
         h.run()
         status = h.getModelStatus()
@@ -225,7 +236,7 @@ class _Model:
                "length": length, "unit": unit}
         return "optimal", out
 
-    def price(self, y: np.ndarray):
+    def price(self, y: np.ndarray, tol: float = PRICE_TOL):
         """Violating (pair, group, ratio) for the duals y (K, 2n), chunk by chunk."""
         d = self.data
         found = []
@@ -246,7 +257,7 @@ class _Model:
                     np.maximum(st * e, 0.0) if st else np.maximum(-sc * e, 0.0))
                 work = gain.sum(axis=1) - 0.5 * kw * length * zsum.sum(axis=1)
                 cost = price * length
-                bad = free & (work > cost * (1.0 + PRICE_TOL))
+                bad = free & (work > cost * (1.0 + tol))
                 if bad.any():
                     found.append((pair[bad], np.full(bad.sum(), gi), work[bad] / cost[bad]))
         if not found:
@@ -429,25 +440,33 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
                              f"(> {MAX_FULL_COLUMNS}); use member adding or a coarser grid")
     reach = 1 if member_adding else np.inf
     rounds = 0
+    exact = not member_adding
     while True:
         model.in_lp[data.reach <= reach] = True
         rounds += 1
-        status, out = model.solve()
+        status, out = model.solve(exact)
         if status == "optimal" or model.in_lp.all():
             break
         reach *= 2
+    gap = 0.0
     while status == "optimal" and member_adding and rounds < MAX_ROUNDS:
         found = model.price(out["duals"])
         if found is None:
+            gap = 0.0
             break
         pair, grp, ratio = found
+        gap = max(0.0, 1.0 - 1.0 / float(ratio.max()))
+        if gap <= GAP_TOL:
+            break
         limit = batch or max(1000, int(0.1 * model.in_lp.sum()))
         if len(pair) > limit:
             top = np.argpartition(-ratio, limit)[:limit]
             pair, grp = pair[top], grp[top]
         model.in_lp[pair, grp] = True
         rounds += 1
-        status, out = model.solve()
+        status, out = model.solve(exact)
+    if status == "optimal" and not exact:
+        status, out = model.solve(True)   # same members, solved to a vertex: clean forces
     if status == "infeasible":
         raise SolveError("infeasible", "no structure in the ground structure can carry every "
                          "load case to the supports")
@@ -456,11 +475,11 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
     if rounds >= MAX_ROUNDS:
         log.warning("member adding stopped after %d rounds", rounds)
     return _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds,
-                   time.perf_counter() - t0, int(model.in_lp.sum()))
+                   time.perf_counter() - t0, int(model.in_lp.sum()), gap)
 
 
 def _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds, seconds,
-            columns) -> CaseDesign:
+            columns, gap) -> CaseDesign:
     area_d = out["area"]
     keep = area_d > 1e-9 * max(float(area_d.max()), 1e-300)
     pair, grp = out["pair"][keep], out["group"][keep]
@@ -495,7 +514,9 @@ def _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds, se
     names = np.array([g[0] for g in groups])[grp]
     design = CaseDesign(
         status="optimal",
-        message="proven optimum of the multi-case layout LP (lumped self-weight)",
+        message=("proven optimum of the multi-case layout LP (lumped self-weight)" if gap == 0
+                 else "optimum of the multi-case layout LP (lumped self-weight) within a "
+                 f"proven gap of {gap:.1e}"),
         volume=copies * float(volume.sum()), cost=copies * float((price * volume).sum()),
         weight=0.0, nodes=grid.xz[used], start=index[a], end=index[b], group=names,
         area=area, length=length, member_volume=volume, forces=forces,
@@ -504,7 +525,7 @@ def _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds, se
         case_names=tuple(c.name for c in study.cases),
         stats={"rounds": rounds, "seconds": seconds, "columns": columns,
                "candidates": len(data.a) * len(groups), "grid_nodes": grid.n,
-               "lp_objective": out["objective"]},
+               "lp_objective": out["objective"], "gap": gap},
         copies=copies, study=study)
     weight = copies * float(design.member_weight().sum())
     worst = max(float(np.abs(design.residual(k)).max()) for k in range(K))
