@@ -222,12 +222,41 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
     with np.errstate(over="ignore"):
         design = solve_scenario(scenario)
     wall = time.perf_counter() - t0
+    if scenario.study is not None:
+        return _report_cases(scenario, design, out, wall)
     if out is not None:
         try:
             write_json(out, design_to_dict(design, scenario=scenario, wall_seconds=wall))
         except OSError as err:
             raise InputError("--json", str(out), f"a writable file ({err.strerror})") from None
     print(format_summary(scenario, design, wall))
+    if out is not None:
+        print(f"JSON written to {out}")
+    return EXIT_OK
+
+
+def _report_cases(scenario: Scenario, design, out: Path | None, wall: float) -> int:
+    """Summary and JSON of a multi-case (or priced) design (:mod:`bridgeopt.casereport`)."""
+    from .casereport import case_design_to_dict, format_case_summary
+
+    if out is not None:
+        try:
+            write_json(out, case_design_to_dict(design, scenario=scenario, wall_seconds=wall))
+        except OSError as err:
+            raise InputError("--json", str(out), f"a writable file ({err.strerror})") from None
+    header = [f"bridgeopt {__version__}: {scenario.name} ({scenario.kind} scenario, "
+              + ("whole-span model, " if scenario.full_span else "") + "load cases)"]
+    if scenario.source and scenario.source != "<dict>":
+        header.append(f"  source: {scenario.source}")
+    inputs = format_inputs(scenario)
+    if scenario.full_span:
+        inputs = [line.replace("half-span model", "whole-span model") for line in inputs]
+        if scenario.piers or scenario.anchorages:
+            inputs.append(_row("piers, anchorages", f"x = {list(scenario.piers)} m; "
+                               f"{[list(p) for p in scenario.anchorages]} m"))
+        if scenario.channels:
+            inputs.append(_row("channels", f"{len(scenario.channels)} clearance envelope(s)"))
+    print(format_case_summary(design, header=header, inputs=inputs, wall_seconds=wall))
     if out is not None:
         print(f"JSON written to {out}")
     return EXIT_OK
