@@ -30,9 +30,12 @@ def _s():
     return scenario
 
 
-def _name(where: str, raw: Mapping, i: int) -> str:
+def _name(where: str, raw: Mapping, i: int, taken=()) -> str:
     s = _s()
-    return s._string(f"{where}.name", raw["name"]) if "name" in raw else f"case {i + 1}"
+    name = s._string(f"{where}.name", raw["name"]) if "name" in raw else f"case {i + 1}"
+    if name in taken:
+        raise InputError(f"{where}.name", name, "a name not used by another case")
+    return name
 
 
 def layout_cases(data: Mapping) -> tuple[LoadCase, ...]:
@@ -59,7 +62,7 @@ def layout_cases(data: Mapping) -> tuple[LoadCase, ...]:
         if not loads and not lines:
             raise InputError(where, s._Shown("{...}"), "a case with at least one "
                              "[[load_case.load]] or [[load_case.line_load]]")
-        out.append(LoadCase(_name(where, raw, i), loads, lines))
+        out.append(LoadCase(_name(where, raw, i, [c.name for c in out]), loads, lines))
     return tuple(out)
 
 
@@ -94,7 +97,7 @@ def bridge_cases(data: Mapping, span: float) -> tuple[LoadCase, ...]:
                 ends[key] = s._number(f"{where}.{key}", raw[key], "an x-coordinate in m")
         load = traffic_load(pattern, intensity=q, deck=(0.0, span), start=ends.get("from"),
                             end=ends.get("to"), side=side, field=f"{where}.pattern")
-        out.append(LoadCase(_name(where, raw, i), (), (load,)))
+        out.append(LoadCase(_name(where, raw, i, [c.name for c in out]), (), (load,)))
     return tuple(out)
 
 
