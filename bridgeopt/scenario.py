@@ -801,6 +801,10 @@ def solve_scenario(scenario: Scenario, *, member_adding: bool | None = None) -> 
 
     A bridge's design is reported per whole span (the half-span model times two).
 
+    A scenario with ``[[load_case]]`` or ``[cost]`` returns a
+    :class:`~bridgeopt.multicase.CaseDesign` from
+    :func:`~bridgeopt.multicase.optimize_cases` instead of a :class:`Design`.
+
     Raises
     ------
     SolveError
