@@ -99,7 +99,7 @@ def format_inputs(scenario: Scenario) -> list[str]:
             _row("depth below deck", f"{_g(b.depth)} m"),
             _row("deck load", f"{_g(b.deck_load)} N/m ({_g(b.deck_load / 1e3)} kN/m)"),
             _row("divisions", f"{b.divisions} across the span (grid step {_g(b.spacing)} m; "
-                 f"half-span model)"),
+                 f"{'whole-span' if scenario.full_span else 'half-span'} model)"),
         ]
         tension, comp = b.material, b.compression_material
     else:

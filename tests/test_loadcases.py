@@ -92,7 +92,8 @@ def test_one_case_weightless_reproduces_the_single_case_volume():
     p = bridge().to_problem()
     ref = optimize_layout(p)
     d = optimize_cases(CaseStudy(p, (LoadCase("deck"),)))
-    assert d.volume == pytest.approx(ref.volume, rel=1e-7)
+    # solver tolerance: member adding stops at a proven gap below 1e-6 (multicase.GAP_TOL)
+    assert d.volume == pytest.approx(ref.volume, rel=1e-6)
     assert d.governing_counts() == {"deck": len(d.start)}
     assert_case_design(d)
 
