@@ -250,7 +250,6 @@ def _report_cases(scenario: Scenario, design, out: Path | None, wall: float) -> 
         header.append(f"  source: {scenario.source}")
     inputs = format_inputs(scenario)
     if scenario.full_span:
-        inputs = [line.replace("half-span model", "whole-span model") for line in inputs]
         if scenario.piers or scenario.anchorages:
             inputs.append(_row("piers, anchorages", f"x = {list(scenario.piers)} m; "
                                f"{[list(p) for p in scenario.anchorages]} m"))
