@@ -49,6 +49,11 @@ def format_case_summary(design, *, header: list[str], inputs: list[str],
                          f"governs {counts[case.name]} member(s)"))
     lines.append(f"Result: {design.message}")
     lines.append(row("volume", f"{_g(design.volume)} m3"))
+    ref = design.stats.get("reference")
+    if ref:
+        lines.append(row("single-case reference", f"{_g(ref['volume'])} m3 for case "
+                         f"{ref['case']!r} alone (equal-strength elements); this design "
+                         f"{100 * (design.volume / ref['volume'] - 1):+.2f} %"))
     lines.append(row("cost", f"{_g(design.cost)} {_currency(design)}"))
     for g in sorted(set(design.group)):
         lines.append(row(f"  {g} volume", f"{_g(float(design.member_volume[design.group == g].sum()) * design.copies)} m3"))

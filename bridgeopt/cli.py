@@ -237,7 +237,19 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
 
 def _report_cases(scenario: Scenario, design, out: Path | None, wall: float) -> int:
     """Summary and JSON of a multi-case (or priced) design (:mod:`bridgeopt.casereport`)."""
+    import dataclasses
+
     from .casereport import case_design_to_dict, format_case_summary
+    from .multicase import single_case_reference
+
+    try:
+        with np.errstate(over="ignore"):
+            k, ref = single_case_reference(design.study)
+        stats = dict(design.stats, reference={"case": design.case_names[k],
+                                              "volume": ref.volume})
+        design = dataclasses.replace(design, stats=stats)
+    except (SolveError, InputError):
+        pass  # no single-case reference (the case alone cannot be carried): not reported
 
     if out is not None:
         try:

@@ -86,7 +86,7 @@ from .loadcases import CaseStudy, UnitCosts
 from .lp import PRICE_CHUNK, PRICE_TOL, _silent_highs
 from .materials import GRAVITY
 
-__all__ = ["CaseDesign", "optimize_cases", "MAX_FULL_COLUMNS"]
+__all__ = ["CaseDesign", "optimize_cases", "single_case_reference", "MAX_FULL_COLUMNS"]
 
 log = logging.getLogger(__name__)
 
@@ -531,3 +531,30 @@ def _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds, se
     worst = max(float(np.abs(design.residual(k)).max()) for k in range(K))
     stats = dict(design.stats, equilibrium_error=worst / ref_force)
     return dataclasses.replace(design, weight=weight, stats=stats)
+
+
+def single_case_reference(study: CaseStudy, case: int | None = None):
+    """The single-case reference optimum (equal-strength elements) for one case of ``study``.
+
+    Parameters
+    ----------
+    study : CaseStudy
+    case : int, optional
+        Which case (default: the one with the largest total applied load, the
+        first on a tie).
+
+    Returns
+    -------
+    (int, Design)
+        The case's index and :func:`~bridgeopt.layout.optimize_layout`'s design
+        for that case alone.  A structure for every case is at least about as
+        heavy (exactly at least as heavy when weightless; with self-weight the
+        lumped and equal-strength models differ slightly, see docs/method.md).
+    """
+    from .layout import optimize_layout
+
+    if case is None:
+        totals = [study.total_load(k) for k in range(len(study.cases))]
+        case = int(np.argmax(totals))
+    loads, lines = study.case_loads(case)
+    return case, optimize_layout(dataclasses.replace(study.problem, loads=loads, line_loads=lines))

@@ -142,8 +142,9 @@ def test_member_adding_reaches_the_full_ground_structure_optimum():
 
 # ---------------------------------------------------------------- traffic patterns
 
-def test_whole_span_model_matches_the_half_model_for_symmetric_load():
-    b = bridge()
+@pytest.mark.parametrize("arrangement", ["single", "repeating"])
+def test_whole_span_model_matches_the_half_model_for_symmetric_load(arrangement):
+    b = bridge(arrangement=arrangement)
     assert optimize_layout(full_span_problem(b)).volume == pytest.approx(
         optimize_layout(b.to_problem()).volume, rel=1e-7)
 
@@ -414,3 +415,31 @@ def test_cli_reports_cases_cost_and_volume(tmp_path, capsys):
     assert sum(c["governs"] for c in data["cases"]) == len(data["members"])
     assert data["cost"] > 0 and data["volume"] > 0 and data["cautions"]
     assert set(data["members"][0]["forces"]) == {"all", "right"}
+    ref = data["stats"]["reference"]
+    assert ref["case"] == "all" and 0 < ref["volume"] <= data["volume"] * (1 + 1e-3)
+    assert "single-case reference" in text
+
+
+def test_single_case_reference_is_the_heaviest_case_alone_and_not_heavier():
+    from bridgeopt.multicase import single_case_reference
+
+    p = full_span_problem(bridge())
+    study = CaseStudy(p, (traffic("half"), traffic("full")))
+    k, ref = single_case_reference(study)
+    assert k == 1
+    both = optimize_cases(study)
+    assert ref.volume < both.volume   # weightless: carrying more cases never costs less
+
+
+def test_single_case_bridge_with_a_channel_keeps_every_curve_clear():
+    d = tomllib.loads(SMALL)
+    del d["load_case"], d["cost"]
+    d["bridge"]["channel"] = [{"outline": [[60.0, -20.0], [140.0, -20.0], [140.0, -4.0],
+                                           [60.0, -4.0]]}]
+    sc = parse_scenario(d)
+    assert sc.full_span and sc.study is None
+    design = solve_scenario(sc)
+    m = design.members
+    assert_clear(sc.problem, design.nodes[m.start], design.nodes[m.end], m.sense)
+    # no node in the channel: its interior holds none of the design's nodes
+    assert not inside(design.nodes, sc.channels[0], 1e-6).any()
