@@ -13,6 +13,8 @@ from .bridge import ARRANGEMENTS, BridgeScenario
 from .cautions import CAUTIONS
 from .design import Design, Members
 from .errors import BridgeoptError, InputError, SolveError
+from .forms import (ArchForm, CableStayedForm, FormResult, ReferenceForm, SuspensionForm,
+                    parse_form, solve_form)
 from .frame import Frame, size_frame
 from .geometry import NodeMoves, optimize_geometry
 from .layout import optimize_layout
@@ -26,7 +28,8 @@ __all__ = [
     "ARRANGEMENTS", "BridgeScenario", "CAUTIONS", "Design", "Members", "BridgeoptError",
     "InputError", "SolveError", "optimize_layout", "GRAVITY", "PRESETS", "Material",
     "material_from_name", "Domain", "LineLoad", "PointLoad", "Problem", "Support",
-    "Frame", "size_frame", "NodeMoves", "optimize_geometry",
+    "Frame", "size_frame", "NodeMoves", "optimize_geometry", "ArchForm", "CableStayedForm",
+    "FormResult", "ReferenceForm", "SuspensionForm", "parse_form", "solve_form",
     "CaseStudy", "LoadCase", "UnitCosts", "traffic_load", "CaseDesign", "optimize_cases",
     "full_span_problem",
 ]

@@ -8,6 +8,13 @@ Commands
     Solve the bundled demo crossing.
 ``check FILE.toml``
     Read and check a scenario file without solving it.
+``sweep SWEEP.toml -o DIR [--jobs N] [--scheduler ADDRESS] [--retry-failed]``
+    Solve every combination of a sweep file; one row per case in DIR/results.csv
+    and DIR/results.parquet; resumable.
+``export FILE.toml|DESIGN.json -o DIR [--formats csv,json,svg,dxf]``
+    Write a solved design as CSV tables, JSON, SVG and DXF drawings.
+``judge FILE.toml LAYOUT [--members MEMBERS.csv]``
+    Size a proposed layout with the same LP and compare it with the reference optimum.
 
 Exit status: 0 success; 2 bad input (a key, value or file; also a bad command
 line); 3 the solve failed (:class:`~bridgeopt.errors.SolveError`); 1 an
@@ -36,6 +43,9 @@ from .cautions import CAUTIONS
 from .design import Design
 from .errors import BridgeoptError, InputError, SolveError
 from .export import design_to_dict, write_json
+from .forms import form_problem, solve_form
+from .geometry import optimize_geometry
+from .layout import optimize_layout
 from .materials import GRAVITY, Material
 from .scenario import Scenario, load_scenario, solve_scenario
 
@@ -125,14 +135,44 @@ def format_inputs(scenario: Scenario) -> list[str]:
     else:
         lines.append(_row("tension material", _material_text(tension)))
         lines.append(_row("compression material", _material_text(comp)))
+    if getattr(scenario, "form", None) is not None:
+        keys = ", ".join(f"{k} = {v!r}" for k, v in scenario.form.to_dict().items() if k != "type")
+        lines.append(_row("form", scenario.form.type + (f" ({keys})" if keys else "")
+                          + ("" if scenario.form.type == "reference"
+                             else ", compared with the reference optimum")))
     if scenario.bridge is not None:
         ns = scenario.bridge.normalised_span
         lines.append(_row("normalised span", f"{_g(ns, 4)} (span / (sigma/(rho g)), tension)"))
     return lines
 
 
-def format_summary(scenario: Scenario, design: Design, wall_seconds: float | None = None) -> str:
-    """The text summary of a solved scenario, ending with the cautions."""
+def format_form(result) -> list[str]:
+    """Lines setting a solved bridge form against the reference optimum."""
+    keys = ", ".join(f"{k} = {v!r}" for k, v in result.spec.to_dict().items() if k != "type")
+    lines = [f"Form: {result.form_type}" + (f" ({keys})" if keys else ""),
+             _row("form volume", f"{_g(result.volume)} m3 (starting geometry "
+                  f"{_g(result.start_volume)} m3)"),
+             _row("reference optimum", f"{_g(result.reference_volume)} m3 (layout "
+                  + ("and geometry " if "history" in result.reference.stats else "")
+                  + "optimization, same domain and supports)"),
+             _row("volume ratio", f"{_g(result.ratio, 4)} (form / reference)")]
+    for name, value in result.geometry.items():
+        lines.append(_row(name.replace("_", " "), f"{_g(value)} m"))
+    lines.append("  quantities per element group (whole span):")
+    for group, q in result.quantities.items():
+        lines.append(f"    {group:<10} {q['members']:>4} members  {_g(q['volume_m3']):>12} m3  "
+                     f"{_g(q['weight_N'] / 1e3):>12} kN  "
+                     f"largest force {_g(q['largest_force_N'])} N")
+    return lines
+
+
+def format_summary(scenario: Scenario, design: Design, wall_seconds: float | None = None,
+                   form=None) -> str:
+    """The text summary of a solved scenario, ending with the cautions.
+
+    With ``form`` (a :class:`~bridgeopt.forms.FormResult` whose design is
+    ``design``), the form is set against the reference optimum.
+    """
     m = design.members
     n_t = int((m.sense == "tension").sum())
     whole = " (whole span)" if scenario.bridge is not None else (
@@ -174,6 +214,8 @@ def format_summary(scenario: Scenario, design: Design, wall_seconds: float | Non
                           f"{start['nodes']} -> {len(design.nodes)}, members {start['members']} "
                           f"-> {len(m)} ({len(st['history']) - 1} stages)"))
     lines.append(_row("equilibrium error", f"{design.equilibrium_error:.1e} of the applied load"))
+    if form is not None:
+        lines += format_form(form)
     lines.append(CAUTIONS)
     return "\n".join(lines)
 
@@ -219,17 +261,31 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
         scenario = scenario.with_solve(geometry_optimization=True)
     # exp(k h) overflows for members far beyond the self-weight reach; their costs are
     # infinite and the solver drops them, so numpy's overflow warning is only noise here.
+    form = None
     with np.errstate(over="ignore"):
-        design = solve_scenario(scenario)
+        if scenario.form is not None and scenario.form.type != "reference":
+            # a form's free dimensions are always optimized; [solve] geometry_optimization
+            # also rationalises the reference it is compared with
+            reference = None
+            if scenario.solve.geometry_optimization:
+                reference = optimize_geometry(optimize_layout(
+                    form_problem(scenario.bridge, scenario.form),
+                    member_adding=scenario.solve.member_adding, batch=scenario.solve.batch))
+            form = solve_form(scenario.bridge, scenario.form, reference=reference,
+                              member_adding=scenario.solve.member_adding)
+            design = form.design
+        else:
+            design = solve_scenario(scenario)
     wall = time.perf_counter() - t0
     if scenario.study is not None:
         return _report_cases(scenario, design, out, wall)
     if out is not None:
         try:
-            write_json(out, design_to_dict(design, scenario=scenario, wall_seconds=wall))
+            write_json(out, design_to_dict(design, scenario=scenario, wall_seconds=wall,
+                                           form=form))
         except OSError as err:
             raise InputError("--json", str(out), f"a writable file ({err.strerror})") from None
-    print(format_summary(scenario, design, wall))
+    print(format_summary(scenario, design, wall, form=form))
     if out is not None:
         print(f"JSON written to {out}")
     return EXIT_OK
@@ -327,8 +383,206 @@ def _add_check(sub) -> None:
     p.set_defaults(func=_run_check)
 
 
+class _Progress:
+    """A progress bar on stderr (one line, redrawn on a terminal; a line per 5 % otherwise)."""
+
+    WIDTH = 30
+
+    def __init__(self, stream=None) -> None:
+        self.stream = stream or sys.stderr
+        self.tty = hasattr(self.stream, "isatty") and self.stream.isatty()
+        self.t0 = time.perf_counter()
+        self.start_done: int | None = None
+        self.failed = 0
+        self.last_step = -1
+
+    def __call__(self, done: int, total: int, case, row: dict) -> None:
+        if self.start_done is None:
+            self.start_done = done - 1
+        if row.get("status") != "ok":
+            self.failed += 1
+        elapsed = time.perf_counter() - self.t0
+        ran = done - self.start_done
+        rate = 60.0 * ran / elapsed if elapsed > 0 else 0.0
+        left = (total - done) * elapsed / ran if ran else 0.0
+        fill = int(self.WIDTH * done / total) if total else self.WIDTH
+        text = (f"[{'#' * fill}{'.' * (self.WIDTH - fill)}] {done}/{total} cases, "
+                f"{self.failed} failed, {rate:.1f} cases/min, {left / 60:.1f} min left")
+        if self.tty:
+            print("\r" + text, end="\n" if done == total else "", file=self.stream, flush=True)
+        else:
+            step = int(20 * done / total) if total else 20
+            if step != self.last_step or done == total:
+                self.last_step = step
+                print(text, file=self.stream, flush=True)
+
+
+def _run_sweep(args) -> int:
+    from .sweep import load_sweep, run_sweep
+
+    sweep = load_sweep(args.file)
+    if args.jobs is not None and args.jobs < 1:
+        raise InputError("--jobs", args.jobs, "a whole number >= 1 (worker processes)")
+    out = Path(args.output)
+    if out.exists() and not out.is_dir():
+        raise InputError("--output", str(out), "a folder (created if missing), not a file")
+    print(f"bridgeopt {__version__}: sweep {sweep.name}: {len(sweep)} cases"
+          + (f" over {', '.join(sweep.varied)}" if sweep.varied else ""))
+    print(f"  source: {sweep.source}")
+    where = f"Dask scheduler {args.scheduler}" if args.scheduler else "local processes"
+    outcome = run_sweep(sweep, out, jobs=args.jobs, scheduler=args.scheduler,
+                        retry_failed=args.retry_failed, progress=_Progress())
+    if outcome.skipped:
+        print(f"  {outcome.skipped} case(s) already finished in {out}: not run again")
+    if outcome.workers:
+        print(f"  ran {len(outcome.ran)} case(s) on {where} ({outcome.workers} worker slot(s)) "
+              f"in {outcome.seconds:.1f} s ({outcome.cases_per_minute:.1f} cases per minute)")
+    elif outcome.ran:
+        print(f"  {len(outcome.ran)} case(s) checked and recorded as bad before any solve")
+    else:
+        print("  nothing left to run")
+    missing = outcome.total - sum(outcome.statuses.values())
+    print(f"  {outcome.statuses.get('ok', 0)} ok, {outcome.failed} failed (see the status and "
+          "error columns)" + (f", {missing} not run yet" if missing else ""))
+    print(f"  results: {out / 'results.csv'}, {out / 'results.parquet'} (columns in "
+          f"{out / 'README.txt'})")
+    print(CAUTIONS)
+    if outcome.interrupted:
+        _say_error(f"interrupted: {outcome.total - outcome.skipped - len(outcome.ran)} case(s) "
+                   "not run; run the same command again to finish them")
+        return 130
+    if outcome.total and outcome.failed == outcome.total:
+        _say_error(f"every case failed; the first: {outcome.first_error}")
+        return EXIT_INPUT if set(outcome.statuses) == {"input-error"} else EXIT_SOLVE
+    return EXIT_OK
+
+
+def _add_sweep(sub) -> None:
+    p = sub.add_parser("sweep", help="solve every combination of a sweep file",
+                       description="Solve every case of a sweep file (a scenario file in which "
+                                   "any value may be a list; see docs/formats.md) and write one "
+                                   "row per case to DIR/results.csv and DIR/results.parquet. "
+                                   "Finished cases are kept: running the same command again "
+                                   "solves only the missing ones.")
+    p.add_argument("file", metavar="SWEEP.toml", help="sweep file")
+    p.add_argument("-o", "--output", metavar="DIR", required=True,
+                   help="output folder (created if missing; re-used to resume)")
+    p.add_argument("--jobs", type=int, metavar="N",
+                   help="local worker processes (default: one per CPU)")
+    p.add_argument("--scheduler", metavar="ADDRESS",
+                   help="run on a Dask distributed cluster (e.g. tcp://host:8786) instead of "
+                        "local processes; needs the 'cluster' extra")
+    p.add_argument("--retry-failed", action="store_true",
+                   help="also run again the cases that failed in an earlier run")
+    p.set_defaults(func=_run_sweep)
+
+
+def _solve_design(scenario: Scenario, *, geometry_optimization: bool = False):
+    """(design, form or None) of a scenario, solved as ``bridgeopt solve`` solves it."""
+    if geometry_optimization:
+        scenario = scenario.with_solve(geometry_optimization=True)
+    with np.errstate(over="ignore"):
+        if scenario.form is not None and scenario.form.type != "reference":
+            reference = None
+            if scenario.solve.geometry_optimization:
+                reference = optimize_geometry(optimize_layout(
+                    form_problem(scenario.bridge, scenario.form),
+                    member_adding=scenario.solve.member_adding, batch=scenario.solve.batch))
+            form = solve_form(scenario.bridge, scenario.form, reference=reference,
+                              member_adding=scenario.solve.member_adding)
+            return scenario, form.design, form
+        return scenario, solve_scenario(scenario), None
+
+
+def _run_export(args) -> int:
+    from .outputs import export_design, parse_formats, read_design_json
+
+    t0 = time.perf_counter()
+    formats = parse_formats(args.formats)
+    out = Path(args.output)
+    if out.exists() and not out.is_dir():
+        raise InputError("--output", str(out), "a folder (created if missing), not a file")
+    scenario = form = None
+    if Path(args.file).suffix.lower() == ".json":
+        design = read_design_json(args.file)
+        print(f"bridgeopt {__version__}: export of the solved design {args.file}")
+    else:
+        scenario, design, form = _solve_design(load_scenario(args.file),
+                                               geometry_optimization=args.geometry_optimization)
+        print(f"bridgeopt {__version__}: {scenario.name} ({scenario.kind} scenario) solved: "
+              f"volume {_g(design.volume)} m3, {len(design.members)} members"
+              + (f"; {form.form_type} form, ratio {_g(form.ratio, 4)} to the reference optimum"
+                 if form is not None else ""))
+    try:
+        written = export_design(design, out, formats, scenario=scenario, form=form,
+                                wall_seconds=time.perf_counter() - t0)
+    except OSError as err:
+        raise InputError("--output", str(out), f"a writable folder ({err.strerror})") from None
+    for path in written:
+        print(f"  written: {path}")
+    print(CAUTIONS)
+    return EXIT_OK
+
+
+def _add_export(sub) -> None:
+    p = sub.add_parser("export", help="write a solved design as CSV, JSON, SVG and DXF",
+                       description="Solve a scenario file (or read the JSON of a solve) and "
+                                   "write members.csv, nodes.csv, design.json, design.svg and "
+                                   "design.dxf (see docs/formats.md).")
+    p.add_argument("file", metavar="FILE.toml|DESIGN.json",
+                   help="scenario file to solve, or the JSON of a solve")
+    p.add_argument("-o", "--output", metavar="DIR", required=True, help="output folder")
+    p.add_argument("--formats", default="csv,json,svg,dxf", metavar="LIST",
+                   help="comma-separated: csv, json, svg, dxf (default: all)")
+    p.add_argument("--geometry-optimization", action="store_true",
+                   help="rationalise the layout first (as solve --geometry-optimization)")
+    p.set_defaults(func=_run_export)
+
+
+def _run_judge(args) -> int:
+    from .judge import judge_problem, judge_proposal
+    from .proposal import read_proposal
+
+    scenario = load_scenario(args.file)
+    proposal = read_proposal(args.layout, args.members)
+    judgement = judge_proposal(judge_problem(scenario), proposal)
+    print(f"bridgeopt {__version__}: {scenario.name} ({scenario.kind} scenario): a proposed "
+          "layout judged against the reference optimum")
+    print(f"  source: {scenario.source}")
+    print("\n".join(format_inputs(scenario)))
+    print(judgement.summary(top=args.top))
+    if args.json:
+        from .export import design_to_dict, write_json
+
+        data = design_to_dict(judgement.design, scenario=scenario)
+        data.update({"reference_volume": judgement.reference_volume,
+                     "volume_ratio": judgement.ratio, "proposal": judgement.proposal.source,
+                     "excess": judgement.excess.to_dict(orient="records")})
+        write_json(_check_json_target(args.json), data)
+        print(f"JSON written to {args.json}")
+    return EXIT_OK
+
+
+def _add_judge(sub) -> None:
+    p = sub.add_parser("judge", help="size a proposed layout and compare it with the optimum",
+                       description="Read a proposed layout (nodes and members, CSV or JSON; see "
+                                   "docs/formats.md), size it with the same LP and self-weight "
+                                   "elements under the scenario's loads, and report its volume, "
+                                   "the reference optimum and the members carrying most of the "
+                                   "excess.")
+    p.add_argument("file", metavar="FILE.toml", help="scenario file (loads, supports, domain)")
+    p.add_argument("layout", metavar="LAYOUT",
+                   help="layout.json, or nodes.csv (with members.csv beside it), or a folder")
+    p.add_argument("--members", metavar="MEMBERS.csv",
+                   help="the members CSV (default: members.csv beside nodes.csv)")
+    p.add_argument("--top", type=int, default=5, metavar="N",
+                   help="members listed by excess (default 5)")
+    p.add_argument("--json", metavar="OUT.json", help="also write the sized proposal as JSON")
+    p.set_defaults(func=_run_judge)
+
+
 #: Command registrars, in the order ``--help`` lists them.
-COMMANDS = (_add_solve, _add_demo, _add_check)
+COMMANDS = (_add_solve, _add_demo, _add_check, _add_sweep, _add_export, _add_judge)
 
 
 def build_parser() -> argparse.ArgumentParser:

@@ -10,7 +10,8 @@ Top-level keys: ``bridgeopt_version``, ``schema``, ``name``, ``kind``,
 ``weight_kN``, ``mass_t``, ``model_volume`` [m3], ``copies``,
 ``normalised_volume`` (bridges; else null), ``applied_load`` [N], ``nodes``,
 ``members``, ``loads``, ``reactions``, ``stats``, ``inputs``, ``derived``,
-``units``, ``cautions``.
+``units``, ``cautions``; for a bridge form also ``reference_volume`` [m3],
+``volume_ratio`` [-] and ``form`` (see :func:`design_to_dict`).
 """
 
 from __future__ import annotations
@@ -91,7 +92,7 @@ def _derived(problem, scenario) -> dict:
 
 
 def design_to_dict(design: Design, *, scenario: Scenario | None = None,
-                   wall_seconds: float | None = None) -> dict:
+                   wall_seconds: float | None = None, form=None) -> dict:
     """A JSON-ready dict of ``design`` (SI units; see the module docstring for the keys).
 
     Parameters
@@ -102,6 +103,10 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
         inputs come from ``design.problem``.
     wall_seconds : float, optional
         Total time including reading and checking, recorded in ``stats``. [s]
+    form : FormResult, optional
+        A solved bridge form (``design`` is then its design): adds
+        ``reference_volume`` [m3], ``volume_ratio`` [-] and ``form`` (type, keys,
+        starting volume, main dimensions, quantities per element group).
     """
     problem = design.problem
     m = design.members
@@ -159,6 +164,14 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
         "derived": _derived(problem, scenario) if problem is not None else {},
         "units": UNITS, "cautions": list(CAUTION_LINES), "caution": CAUTIONS,
     }
+    if form is not None:
+        out["reference_volume"] = form.reference_volume
+        out["volume_ratio"] = form.ratio
+        out["form"] = {"type": form.form_type, "keys": form.spec.to_dict(),
+                       "start_volume": form.start_volume, "geometry": form.geometry,
+                       "quantities": form.quantities,
+                       "reference_stats": {} if form.reference is None else {
+                           k: v for k, v in form.reference.stats.items() if k != "history"}}
     return _plain(out)
 
 

@@ -361,7 +361,10 @@ def optimize_geometry(start: Design | Frame, *, moves: NodeMoves | None = None,
     for round_ in range(1, max_rounds + 1):
         if merge:  # members between any two of the current nodes may join the layout
             wider = _relayout(frame)
-            relaid = size_frame(wider)
+            try:
+                relaid = size_frame(wider)
+            except SolveError:  # HiGHS trouble on a nearly degenerate LP: keep the members
+                relaid = current
             if relaid.volume < current.volume * (1 - 1e-9):
                 current, frame = relaid, wider
                 history.append(_record(f"round {round_}: members re-chosen", current))
@@ -369,12 +372,14 @@ def optimize_geometry(start: Design | Frame, *, moves: NodeMoves | None = None,
                 else default_moves(frame, deck_slide=deck_slide, homes=homes))
         before = current.volume
         moved = _move(frame, step, max_iterations)
-        if merge:
-            moved = _snap_vertical(moved, SNAP * frame.problem.spacing)
+        snapped = _snap_vertical(moved, SNAP * frame.problem.spacing) if merge else moved
         try:
-            current = size_frame(moved)
+            current = size_frame(snapped)
         except SolveError:  # a snap left a mechanism: keep the unsnapped moves
-            current = size_frame(_move(frame, step, max_iterations))
+            try:
+                current = size_frame(moved)
+            except SolveError:  # pragma: no cover - _move keeps only solved geometries
+                break
         history.append(_record(f"round {round_}: nodes moved", current))
         if current.volume <= best.volume * (1 + 1e-12):
             best = current

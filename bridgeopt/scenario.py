@@ -35,6 +35,8 @@ from typing import Any, Mapping
 from .bridge import ARRANGEMENTS, BridgeScenario
 from .design import Design
 from .errors import InputError
+from .forms.build import build_form
+from .forms.specs import FormSpec, parse_form
 from .geometry import optimize_geometry
 from .ground import build_grid
 from .layout import nodal_loads, optimize_layout, restrained_rows
@@ -49,7 +51,7 @@ KEYS: dict[str, tuple[str, ...]] = {
     "layout": ("name", "description", "copies", "domain", "material", "compression_material",
                "support", "load", "line_load", "symmetry", "solve", "load_case", "cost"),
     "bridge-file": ("name", "description", "bridge", "material", "compression_material",
-                    "solve", "load_case", "cost"),
+                    "form", "solve", "load_case", "cost"),
     "domain": ("x", "z", "outline", "spacing", "excluded"),
     "domain.excluded": ("outline",),
     "material": ("preset", "name", "strength", "tension_strength", "compression_strength",
@@ -76,6 +78,7 @@ _HINTS = {
     "supports": "each support is a [[support]] table",
     "loads": "each point load is a [[load]] table",
     "line_loads": "each line load is a [[line_load]] table",
+    "form": "a [form] table belongs to a bridge scenario (with a [bridge] table)",
 }
 
 _FIXES = ("x", "z", "xz")
@@ -561,6 +564,8 @@ class Scenario:
     description : str
     source : str
         Where the scenario came from (file path), for messages; not compared.
+    form : FormSpec, optional
+        The bridge form to set against the reference (the ``[form]`` table).
     """
 
     name: str
@@ -569,6 +574,7 @@ class Scenario:
     solve: SolveOptions = SolveOptions()
     description: str = ""
     source: str = field(default="<dict>", compare=False)
+    form: FormSpec | None = None
     cases: tuple = ()
     costs: object = None
     permanent: bool = True
@@ -633,6 +639,8 @@ class Scenario:
             out["material"] = _material_dict(b.material)
             if b.compression_material is not None:
                 out["compression_material"] = _material_dict(b.compression_material)
+            if self.form is not None:
+                out["form"] = self.form.to_dict()
         else:
             out.update(_problem_dict(self.layout))
             if not self.permanent:
@@ -719,8 +727,11 @@ def parse_scenario(data: Mapping, *, source: str = "<dict>") -> Scenario:
     solve = _solve_options(data)
     if has_bridge:
         bridge = _bridge(data, _name(data, "bridge"))
+        form = parse_form(data["form"]) if "form" in data else None
+        if form is not None and form.type != "reference":
+            build_form(bridge, form)  # the form must fit the domain: report it before solving
         return _with_cases(data, Scenario(name=bridge.name, bridge=bridge, solve=solve,
-                                          description=description, source=source))
+                                          description=description, source=source, form=form))
     if not has_domain:
         raise InputError("domain", _MISSING, "a [domain] table (layout problem) or a [bridge] "
                          "table (bridge problem)")
@@ -738,6 +749,13 @@ def _with_cases(data: Mapping, scenario: Scenario) -> Scenario:
     from .casefile import (bridge_cases, check_cases_on_grid, cost_table, crossing_keys,
                            layout_cases)
 
+    if scenario.form is not None and scenario.form.type != "reference":
+        key = next(k for k in ("load_case", "cost") if k in data) if any(
+            k in data for k in ("load_case", "cost")) else next(
+            f"bridge.{k}" for k in ("piers", "anchorages", "channel") if k in data["bridge"])
+        raise InputError(key, _Shown("..."), "left out of a file with a [form] table (forms "
+                         "are single-case half-span studies; load cases, costs, piers, "
+                         "anchorages and channels use the whole-span reference)")
     changes: dict[str, Any] = {}
     if scenario.bridge is not None:
         piers, anch, channels = crossing_keys(data["bridge"])

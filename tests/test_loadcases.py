@@ -443,3 +443,11 @@ def test_single_case_bridge_with_a_channel_keeps_every_curve_clear():
     assert_clear(sc.problem, design.nodes[m.start], design.nodes[m.end], m.sense)
     # no node in the channel: its interior holds none of the design's nodes
     assert not inside(design.nodes, sc.channels[0], 1e-6).any()
+
+
+def test_a_form_with_load_cases_is_refused():
+    d = tomllib.loads(SMALL)
+    d["form"] = {"type": "arch", "variant": "through-arch"}
+    with pytest.raises(InputError) as info:
+        parse_scenario(d)
+    assert info.value.field == "load_case" and "[form]" in str(info.value)

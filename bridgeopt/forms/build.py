@@ -1,0 +1,285 @@
+"""Build a bridge form: its problem (with the supports it needs) and its starting frame.
+
+:func:`form_problem` is the half-span problem on which a form and its reference
+are both solved: :meth:`~bridgeopt.bridge.BridgeScenario.to_problem` (same
+domain, deck load, materials, mirror lines and copies), plus the supports the
+form needs, so that the reference stays a fair lower bound:
+
+* intermediate pylons (``pylons > 1``) stand on piers: a vertical support at the
+  bottom of the domain under each, for the form and the reference alike;
+* a single span's cable-stayed pylon or suspension tower is held horizontally at
+  its top by back stays or the main cable's back span running to an anchorage
+  behind the abutment, outside the modelled domain.  This is modelled as a free
+  horizontal reaction along the whole abutment line x = 0 (as on a mirror line),
+  which the reference gets as well; the anchorage and back stays themselves are
+  not sized, in the form or in the reference.
+
+:func:`build_form` turns a spec into a :class:`~bridgeopt.frame.Frame` and its
+free geometry (:class:`~bridgeopt.geometry.NodeMoves`), checking that the form
+fits: nothing above the domain's rise or below its depth; the suspension
+cable's lowest point and a deck arch's crown at least :data:`CLEARANCE` of the
+available height from the deck; a sag or rise large enough to carry its own
+weight.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from typing import Mapping
+
+import numpy as np
+
+from ..bridge import BridgeScenario
+from ..errors import InputError, SolveError
+from ..frame import Frame
+from ..geometry import NodeMoves
+from ..problem import Problem, Support
+from .arch import arch_frame
+from .builder import available_heights, deck_level, funicular_heights
+from .cable_stayed import cable_stayed_frame
+from .specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
+from .suspension import suspension_frame
+
+__all__ = ["form_problem", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
+           "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag"]
+
+#: Least clearance between deck and cable or crown, as a part of the available height. [-]
+CLEARANCE = 0.01
+#: Starting geometry of a free dimension (common practice, from memory): pylon
+#: spacing about 5 times the pylon height above the deck, cable sag about span/10,
+#: arch rise about span/6.
+START_SPAN_TO_HEIGHT = 5.0
+START_SAG_RATIO = 0.1
+START_RISE_RATIO = 1.0 / 6.0
+#: Least free pylon height, sag and rise, as a part of the length they serve. [-]
+LEAST_RATIO = 0.05
+
+
+def _pylon_positions(bridge: BridgeScenario, pylons: int) -> list[float]:
+    step = bridge.span / pylons
+    return [j * step for j in range(pylons) if j * step <= 0.5 * bridge.span * (1 + 1e-12)]
+
+
+def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
+    """The half-span problem on which ``spec`` and its reference are both solved.
+
+    The bridge's own problem, plus the supports the form needs (see the module
+    docstring): piers under intermediate pylons, and the horizontal anchorage of
+    a single span's pylon or tower tops.
+
+    Raises
+    ------
+    InputError
+        Intermediate pylons that do not stand on grid nodes (``form.pylons``
+        must divide ``bridge.divisions``).
+    """
+    problem = bridge.to_problem()
+    extra: list[Support] = []
+    if isinstance(spec, CableStayedForm) and spec.pylons > 1:
+        if bridge.divisions % spec.pylons:
+            raise InputError("form.pylons", spec.pylons,
+                             f"a divisor of bridge.divisions = {bridge.divisions} (each "
+                             "intermediate pylon's pier stands on a grid node)")
+        bottom = problem.domain.bounds[2]
+        extra = [Support((x, bottom), "z") for x in _pylon_positions(bridge, spec.pylons)[1:]]
+    mirrors = problem.mirror_lines
+    if isinstance(spec, (CableStayedForm, SuspensionForm)) and bridge.arrangement == "single":
+        mirrors = (0.0,) + tuple(mirrors)
+    if extra or mirrors != problem.mirror_lines:
+        problem = dataclasses.replace(problem, supports=problem.supports + tuple(extra),
+                                      mirror_lines=mirrors)
+    return problem
+
+
+def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
+    """Least sag (or rise) of a cable (or arch) that carries its own weight over ``span``. [m]
+
+    A parabolic estimate (common practice statics): with its own weight k H per
+    unit length added to the deck load w, H f = (w + k H) L^2/8, so
+    H (1 - k L^2/(8 f)) = w L^2/(8 f), which has a positive H only when
+    f > k L^2/8 (k = rho g/sigma).  Hangers or columns add weight, so the true
+    limit is a little higher.
+    """
+    return problem.k(sense) * span ** 2 / 8.0
+
+
+def _check_self_weight(value: float, need: float, span: float, what: str, key: str) -> None:
+    """SolveError "span-limit" when ``what`` (``"a cable sag"``, ``"an arch rise"``) is too small."""
+    if value <= need:
+        raise SolveError("span-limit",
+                         f"{what} of {value:.6g} m cannot carry its own weight and the deck over "
+                         f"a {span:.6g} m span: with self-weight it must exceed k L^2/8 = "
+                         f"{need:.6g} m (k = rho*g/sigma; the limit of any span is "
+                         f"pi*sigma/(rho*g) = {math.pi * span ** 2 / (8 * need):.6g} m)"
+                         f"; raise the {what.split()[-1]} ({key}) or use a stronger, lighter "
+                         "material" if need > 0 else f"{what} of {value:.6g} m is too small")
+
+
+def _stays(bridge: BridgeScenario, reach: float) -> int:
+    """Stays per side so that they meet the deck once per grid step (at most 200)."""
+    n = max(1, round(reach / bridge.spacing))
+    if n > 200:
+        raise InputError("form.stays", None, "given (at most 200): one stay per grid step "
+                         f"would need {n}")
+    return n
+
+
+def _panels(bridge: BridgeScenario, spacing: float | None) -> int:
+    half = 0.5 * bridge.span
+    if spacing is None:
+        return bridge.divisions // 2
+    n = max(1, round(half / spacing))
+    if n > 200:
+        raise InputError("form.spacing", spacing, f">= {half / 200:.6g} m (at most 200 panels "
+                         "in the half span)")
+    return n
+
+
+def _free(start: float, low: float, high: float, field: str, value, what: str):
+    """(start, bounds) of a free dimension; InputError when the domain is too small."""
+    if high <= low:
+        raise InputError(field, value, f"a scenario with room for {what} (needs more than "
+                         f"{low:.6g} m, the design domain gives {high:.6g} m)")
+    return min(max(start, low), high), (low, high)
+
+
+def _shaped(make, shape: str, problem: Problem, x: np.ndarray, start: float, end: float,
+            line_sense: str, drop_sense: str):
+    """The frame of ``make(profile)``.  For a funicular or free shape the profile is the
+    exactly funicular polygon of the form's own loads (deck load, hanger or column and
+    line self-weight); a parabola when none is found (the LP then reports the trouble)."""
+    if shape == "parabolic":
+        return make(None)
+    q = problem.line_loads[0].intensity
+    loads = q * np.diff(x)
+    loads[-1] *= 0.5                        # the mirror node's share of the half model
+    loads[:-1] = 0.5 * (loads[:-1] + q * np.diff(x)[1:])
+    z = funicular_heights(x, start=start, end=end, node_loads=loads,
+                          k_line=problem.k(line_sense), line_sense=line_sense,
+                          k_drop=problem.k(drop_sense), drop_base=deck_level(problem)[2])
+    return make(None if z is None else (z - start) / (end - start))
+
+
+def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None = None, *,
+               start: Mapping[str, float] | None = None) -> tuple[Frame, NodeMoves | None]:
+    """The starting frame of ``spec`` and its free geometry on the form's problem.
+
+    ``start`` sets the starting value of free dimensions, by the names of
+    :attr:`FormResult.geometry` (``pylon_height``, ``sag``, ``tower_height``,
+    ``rise``) [m]; the defaults are :data:`START_SPAN_TO_HEIGHT`,
+    :data:`START_SAG_RATIO`, :data:`START_RISE_RATIO` and towers just tall
+    enough for the sag and the least clearance; values are clipped to the bounds.
+
+    Raises
+    ------
+    InputError
+        The form does not fit in the design domain (a key named in the message).
+    """
+    problem = form_problem(bridge, spec) if problem is None else problem
+    start = dict(start or {})
+    rise, depth = available_heights(problem)
+    xs, xe, zd = deck_level(problem)
+    span = bridge.span
+    if isinstance(spec, CableStayedForm):
+        reach = 0.5 * span / spec.pylons
+        if spec.span_to_height is not None:
+            h = 2 * reach / spec.span_to_height
+            if h > rise * (1 + 1e-9):
+                raise InputError("form.span_to_height", spec.span_to_height,
+                                 f">= {2 * reach / rise:.6g} (the pylon, {h:.6g} m above the "
+                                 f"deck, must fit within the rise of {rise:.6g} m)")
+            bounds = None
+        else:
+            h, bounds = _free(start.get("pylon_height", 2 * reach / START_SPAN_TO_HEIGHT),
+                              LEAST_RATIO * reach, rise, "bridge.rise", bridge.rise,
+                              "a pylon above the deck")
+        return cable_stayed_frame(problem, pylons_x=_pylon_positions(bridge, spec.pylons),
+                                  reach=reach, pattern=spec.pattern,
+                                  stays=spec.stays or _stays(bridge, reach),
+                                  height=h, anchor_zone=spec.anchor_zone or ANCHOR_ZONE,
+                                  height_bounds=bounds)
+    if isinstance(spec, SuspensionForm):
+        least = CLEARANCE * rise
+        tower_bounds = sag_bounds = height_bounds = None
+        if spec.sag_ratio is not None:
+            sag = spec.sag_ratio * span
+        if spec.tower_height is not None:
+            tower = spec.tower_height
+            if not least < tower <= rise * (1 + 1e-9):
+                raise InputError("form.tower_height", tower,
+                                 f"a height in ({least:.6g}, {rise:.6g}] m (the towers must fit "
+                                 "within the rise of the design domain)")
+        if spec.sag_ratio is not None and spec.sag_ratio * span > \
+                (rise if spec.tower_height is None else tower) - least:
+            top = rise if spec.tower_height is None else tower
+            raise InputError("form.sag_ratio", spec.sag_ratio,
+                             f"<= {(top - least) / span:.6g} (the cable's lowest point must stay "
+                             f"above the deck under towers at most {top:.6g} m high)")
+        need = self_weight_sag(problem, "tension", span)
+        if spec.sag_ratio is not None:
+            _check_self_weight(sag, need, span, "a cable sag", "form.sag_ratio")
+        else:
+            top = rise if spec.tower_height is None else tower
+            low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
+            _check_self_weight(top - least, 1.02 * need, span, "a cable sag", "bridge.rise")
+            sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
+                                    low, top - least, "bridge.rise", bridge.rise, "a cable sag")
+        if spec.tower_height is None:
+            # the tower height is free: it starts as low as the sag and the least clearance
+            # allow (lifting the whole cable only lengthens hangers and towers)
+            tower, _ = _free(start.get("tower_height", sag + least), sag + least, rise,
+                             "bridge.rise", bridge.rise, "towers")
+            tower_bounds = (sag + least, rise)  # moves the whole cable (its clearance)
+            if spec.shape == "free":
+                tower_bounds = (least, rise)
+        if spec.shape == "free":
+            height_bounds = (least, rise)
+        n = _panels(bridge, spec.spacing)
+
+        def make(profile):
+            return suspension_frame(problem, panels=n, tower=tower, sag=sag, shape=spec.shape,
+                                    profile=profile, sag_bounds=sag_bounds,
+                                    tower_bounds=tower_bounds, height_bounds=height_bounds)
+        x = xs + (xe - xs) * np.arange(n + 1) / n
+        return _shaped(make, spec.shape, problem, x, zd + tower, zd + tower - sag, "tension",
+                       "tension")
+    if isinstance(spec, ArchForm):
+        through = spec.variant == "through-arch"
+        room = rise if through else depth * (1 - CLEARANCE)
+        field, value = ("bridge.rise", bridge.rise) if through else ("bridge.depth", bridge.depth)
+        if room <= 0:
+            raise InputError("form.variant", spec.variant,
+                             f"{'deck-arch' if through else 'through-arch'} here ({field} "
+                             f"= {value:g} m, clipped to whole grid steps of "
+                             f"{bridge.spacing:.6g} m, leaves no room for a "
+                             f"{'through arch above' if through else 'deck arch below'} the deck)")
+        springing = zd if through else zd - depth
+        rise_bounds = height_bounds = None
+        need = self_weight_sag(problem, "compression", span)
+        if spec.rise_ratio is not None:
+            f = spec.rise_ratio * span
+            if f > room * (1 + 1e-9):
+                raise InputError("form.rise_ratio", spec.rise_ratio,
+                                 f"<= {room / span:.6g} (the arch must fit within "
+                                 f"{field} = {value:g} m)")
+            _check_self_weight(f, need, span, "an arch rise", "form.rise_ratio")
+        else:
+            low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
+            _check_self_weight(room, 1.02 * need, span, "an arch rise", field)
+            f, rise_bounds = _free(start.get("rise", max(START_RISE_RATIO * span, 1.5 * need)),
+                                   low, room, field, value, "an arch")
+        if spec.shape == "free":
+            height_bounds = ((zd + CLEARANCE * rise, zd + rise) if through
+                             else (springing, springing + room))
+        n = _panels(bridge, spec.spacing)
+
+        def make(profile):
+            return arch_frame(problem, panels=n, variant=spec.variant, springing=springing,
+                              rise=f, shape=spec.shape, profile=profile,
+                              rise_bounds=rise_bounds, height_bounds=height_bounds)
+        x = xs + (xe - xs) * np.arange(n + 1) / n
+        return _shaped(make, spec.shape, problem, x, springing, springing + f, "compression",
+                       "tension" if through else "compression")
+    raise InputError("form.type", getattr(spec, "type", spec),
+                     "'cable-stayed', 'suspension' or 'arch' (the reference has no frame)")

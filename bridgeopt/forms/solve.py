@@ -1,0 +1,339 @@
+"""Solve a bridge form and set it against the reference optimum of the same scenario.
+
+:func:`solve_form` builds the form (:mod:`bridgeopt.forms.build`) on the
+scenario's half-span problem with the supports it needs, sizes it with the
+layout-optimization LP (:func:`~bridgeopt.frame.size_frame`, equal-strength
+self-weight elements included), improves its free geometry (pylon height, sag,
+tower height, rise, or every cable or rib node's height) with
+:func:`~bridgeopt.geometry.optimize_geometry`, and solves the reference optimum
+(:func:`~bridgeopt.layout.optimize_layout`) on the same problem.
+"""
+
+from __future__ import annotations
+
+import logging
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..bridge import BridgeScenario
+from ..cautions import CAUTIONS
+from ..design import Design
+from ..errors import InputError, SolveError
+from ..frame import Frame, size_frame
+from ..geometry import optimize_geometry
+from ..layout import optimize_layout
+from ..materials import GRAVITY
+from .build import build_form, form_problem, self_weight_sag
+from .builder import deck_level
+from .specs import FormSpec, ReferenceForm, SuspensionForm
+
+__all__ = ["FormResult", "solve_form", "group_quantities", "GROUPS"]
+
+log = logging.getLogger(__name__)
+
+#: Element groups reported for each form, in report order.
+GROUPS = {
+    "reference": ("member",),
+    "cable-stayed": ("stay", "pylon", "deck", "pier"),
+    "suspension": ("cable", "hanger", "tower", "deck", "pier"),
+    "deck-arch": ("arch rib", "column", "deck", "pier"),
+    "through-arch": ("arch rib", "hanger", "deck", "pier"),
+}
+def group_quantities(design: Design, groups=()) -> dict:
+    """Members, volume, weight and largest force per element group, for the whole structure.
+
+    Returns
+    -------
+    dict
+        ``{group: {"members": int, "volume_m3": float, "weight_N": float,
+        "largest_force_N": float}}``, every group of ``groups`` first (zero when
+        it carries nothing), then any other group present.  Volumes and weights
+        count ``design.copies`` copies of the model; member counts are per model.
+    """
+    m = design.members
+    prob = design.problem
+    density = np.where(m.sense == "tension", prob.material.density, prob.compression.density)
+    force = m.axial_force
+    out = {}
+    for g in list(groups) + [g for g in dict.fromkeys(m.group.tolist()) if g not in groups]:
+        sel = m.group == g
+        vol = float(m.volume[sel].sum()) * design.copies
+        out[g] = {"members": int(sel.sum()), "volume_m3": vol,
+                  "weight_N": float((density[sel] * m.volume[sel]).sum()) * GRAVITY
+                  * design.copies,
+                  "largest_force_N": float(force[sel].max()) if sel.any() else 0.0}
+    return out
+
+
+def _geometry(design: Design, form_type: str, deck_z: float) -> dict:
+    """The form's main dimensions, measured on the (optimized) design. [m]"""
+    m, xz = design.members, design.nodes
+
+    def ends(group):
+        sel = m.group == group
+        return xz[np.concatenate([m.start[sel], m.end[sel]])]
+
+    out = {}
+    loaded = np.sort(xz[np.any(design.loads != 0, axis=1), 0])
+    if len(loaded) > 1:
+        out["deck_panel"] = float(np.diff(loaded).max())
+    if form_type == "cable-stayed" and (m.group == "pylon").any():
+        out["pylon_height"] = float(ends("pylon")[:, 1].max() - deck_z)
+    if form_type == "suspension" and (m.group == "cable").any():
+        z = ends("cable")[:, 1]
+        out["tower_height"] = float(z.max() - deck_z)
+        out["sag"] = float(z.max() - z.min())
+    if form_type == "arch" and (m.group == "arch rib").any():
+        z = ends("arch rib")[:, 1]
+        out["rise"] = float(z.max() - z.min())
+    return out
+
+
+@dataclass(frozen=True)
+class FormResult:
+    """A solved bridge form set against the reference optimum of the same scenario.
+
+    Attributes
+    ----------
+    spec : FormSpec
+    design : Design
+        The form, sized by the LP on its (optimized) geometry.
+    start_volume : float
+        Volume of the form on its starting geometry. [m3]
+    volume : float
+        Volume of the form (whole span). [m3]
+    weight : float
+        Self-weight of the form (whole span). [N]
+    reference : Design or None
+        The reference optimum (layout optimization) on the same problem (None
+        when not compared).
+    reference_volume : float [m3]
+    ratio : float
+        volume / reference_volume. [-]
+    quantities : dict
+        Per element group (see :func:`group_quantities`).
+    geometry : dict
+        Main dimensions of the final form: ``pylon_height``, ``tower_height``,
+        ``sag`` or ``rise``, and ``deck_panel``, the largest distance between
+        the deck's loaded nodes (where stays, hangers or columns hold it). [m]
+    """
+
+    spec: FormSpec
+    design: Design
+    start_volume: float
+    volume: float
+    weight: float
+    reference: Design | None
+    reference_volume: float
+    ratio: float
+    quantities: dict
+    geometry: dict
+
+    @property
+    def form_type(self) -> str:
+        return self.spec.type
+
+    def to_frame(self):
+        """Quantities per element group as a :class:`pandas.DataFrame` (SI units in the names)."""
+        import pandas as pd
+
+        df = pd.DataFrame.from_dict(self.quantities, orient="index")
+        df.index.name = "group"
+        return df
+
+    def summary(self) -> str:
+        """A few lines for the engineer, ending with the cautions."""
+        lines = [f"{self.form_type} form: volume {self.volume:.6g} m3 (start "
+                 f"{self.start_volume:.6g}"
+                 f" m3), weight {self.weight:.6g} N; reference optimum {self.reference_volume:.6g}"
+                 f" m3; ratio {self.ratio:.4f}"]
+        for g, q in self.quantities.items():
+            lines.append(f"  {g}: {q['members']} members, {q['volume_m3']:.6g} m3")
+        lines.append(CAUTIONS)
+        return "\n".join(lines)
+
+
+#: Reach, as a part of pi*sigma/(rho*g), from which a form that cannot carry its loads is
+#: reported as limited by self-weight. [-]
+REACH_WARNING = 0.15
+
+
+def _size_start(frame: Frame, spec) -> Design:
+    """size_frame, with a clear message when self-weight makes the form impossible."""
+    try:
+        return size_frame(frame)
+    except SolveError as err:
+        if err.status != "infeasible":
+            raise
+        problem = frame.problem
+        lx = np.abs(frame.nodes[frame.end, 0] - frame.nodes[frame.start, 0])
+        k = np.where(frame.senses == "compression", problem.k("compression"),
+                     problem.k("tension"))
+        part = k * lx / math.pi
+        i = int(np.argmax(part))
+        line = {"suspension": ("cable", "tension", "cable sag"),
+                "arch": ("arch rib", "compression", "arch rise")}.get(spec.type)
+        if line is not None and (frame.group == line[0]).any():
+            on = frame.group == line[0]
+            z = frame.nodes[np.concatenate([frame.start[on], frame.end[on]]), 1]
+            xs, xe, _ = deck_level(problem)
+            span = 2 * (xe - xs)
+            need = self_weight_sag(problem, line[1], span)
+            if np.ptp(z) < 2 * need:
+                raise SolveError(
+                    "span-limit",
+                    f"the {spec.type} form cannot carry its loads: its {line[2]} of "
+                    f"{np.ptp(z):.6g} m is close to the least that carries its own weight over "
+                    f"{span:.6g} m, k L^2/8 = {need:.6g} m (k = rho*g/sigma), and the hangers "
+                    "or columns add more; raise it, shorten the span or use a stronger, "
+                    "lighter material (no span exceeds pi*sigma/(rho*g) = "
+                    f"{math.pi / problem.k(line[1]):.6g} m)") from None
+        if part[i] < REACH_WARNING:
+            raise
+        raise SolveError(
+            "span-limit",
+            f"the {spec.type} form cannot carry its loads: its {frame.group[i]} members reach "
+            f"up to {lx[i]:.6g} m horizontally, {100 * part[i]:.0f}% of the reach "
+            f"pi*sigma/(rho*g) = {math.pi / k[i]:.6g} m of an equal-strength element, and an "
+            "element that long sags too far under its own weight to carry the deck as well; "
+            "shorten the reach (more pylons, closer hangers, a shorter span), steepen it (a "
+            "taller pylon, more sag or rise) or use a stronger, lighter material") from None
+
+
+def _funicular_search(bridge, spec, problem, moves, start: Design) -> Design:
+    """The lightest exactly funicular form over the free sag (rise), by a bounded scalar search.
+
+    A funicular profile belongs to one sag: moved to another it is no longer
+    funicular, and the LP pays for the mismatch with ballast, so node moves from
+    a funicular stop at its own sag.  Here every trial sag gets its own exact
+    funicular, sized by the LP; a free tower height follows the sag at the least
+    clearance (shorter towers and hangers are lighter; the cable is unchanged).
+    """
+    from scipy.optimize import minimize_scalar
+
+    key = "sag" if isinstance(spec, SuspensionForm) else "rise"
+    if key not in moves.names:
+        return start
+    j = moves.names.index(key)
+    now = _geometry(start, spec.type, deck_level(problem)[2])[key]
+    low, high = now + moves.lower[j], now + moves.upper[j]
+    found: dict[float, Design] = {}
+
+    def volume(value: float) -> float:
+        try:
+            frame, _ = build_form(bridge, spec, problem, start={key: value, "tower_height": 0.0})
+            found[value] = size_frame(frame)
+        except (SolveError, InputError):
+            return math.inf
+        return found[value].volume
+
+    minimize_scalar(volume, bounds=(low, high), method="bounded",
+                    options={"xatol": 1e-5 * bridge.span})
+    if not found:
+        return start
+    value = min(found, key=lambda v: found[v].volume)
+    return found[value] if found[value].volume < start.volume else start
+
+
+def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
+    """The form after geometry optimization, never heavier than ``start``.
+
+    A funicular cable or rib with a free sag or rise first gets the sag (rise) of
+    the lightest exact funicular (:func:`_funicular_search`); the form's node
+    moves (sag or rise, tower height, or every node with the free shape) then
+    polish it with :func:`~bridgeopt.geometry.optimize_geometry`.
+    """
+    best = start
+    if getattr(spec, "shape", None) == "funicular":
+        best = _funicular_search(bridge, spec, problem, moves, start)
+        if best is not start:
+            value = _geometry(best, spec.type, deck_level(problem)[2])
+            frame, moves = build_form(bridge, spec, problem, start=value)
+    try:
+        design = optimize_geometry(frame, moves=moves)
+    except SolveError as err:  # keep the best geometry found so far
+        log.warning("geometry optimization of the %s form stopped: %s", spec.type, err)
+        return best
+    return design if design.volume < best.volume else best
+
+
+def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
+               reference: Design | None = None, member_adding: bool = True,
+               compare: bool = True) -> FormResult:
+    """Solve the form ``spec`` of ``bridge`` and its reference optimum.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+    spec : ReferenceForm, CableStayedForm, SuspensionForm or ArchForm
+    optimize : bool
+        Improve the form's free geometry (pylon height, sag, rise ...); without
+        it the form keeps its starting geometry.
+    reference : Design, optional
+        An already solved reference on :func:`form_problem` (saves a solve when
+        comparing several forms that share it).
+    member_adding : bool
+        How the reference is solved (same optimum either way).
+    compare : bool
+        Solve the reference; without it ``reference`` is None and the reference
+        volume and ratio are nan (for sweeps of one form).
+
+    Returns
+    -------
+    FormResult
+
+    Raises
+    ------
+    InputError
+        The form does not fit in the design domain.
+    SolveError
+        The form cannot carry the loads, notably when an element's horizontal
+        reach reaches pi*sigma/(rho*g), beyond which no equal-strength element
+        can carry its own weight.
+
+    References
+    ----------
+    .. [1] W.S. Dorn, R.E. Gomory, H.J. Greenberg (1964), J. de Mecanique 3:25-52.
+    .. [2] H.E. Fairclough, M. Gilbert, A.V. Pichugin, A. Tyas, I. Firth (2018),
+       Proc. R. Soc. A 474:20170726 (equal-strength elements; optimal long-span forms).
+    .. [3] L. He, M. Gilbert (2015), Struct. Multidisc. Optim. 52:677-694 (geometry
+       optimization).
+    """
+    problem = form_problem(bridge, spec)
+    if reference is not None and reference.problem != problem:
+        raise InputError("reference", "a design of another problem",
+                         "a reference solved on form_problem(bridge, spec) (same domain, loads "
+                         "and supports, so that it bounds the form)")
+    if isinstance(spec, ReferenceForm):
+        ref = reference or optimize_layout(problem, member_adding=member_adding)
+        return FormResult(spec=spec, design=ref, start_volume=ref.volume, volume=ref.volume,
+                          weight=ref.weight, reference=ref, reference_volume=ref.volume,
+                          ratio=1.0, quantities=group_quantities(ref, GROUPS["reference"]),
+                          geometry={})
+    frame, moves = build_form(bridge, spec, problem)
+    start = _size_start(frame, spec)
+    design = start
+    if optimize and moves is not None and moves.size:
+        design = _optimized(bridge, spec, problem, frame, moves, start)
+    ref = None
+    if compare:
+        ref = reference or optimize_layout(problem, member_adding=member_adding)
+        if design.volume < ref.volume * (1 - 1e-6):
+            log.warning("the %s form (%.6g m3) is lighter than the reference optimum on this grid "
+                        "(%.6g m3): the grid is too coarse to bound it; use more "
+                        "bridge.divisions", spec.type, design.volume, ref.volume)
+    geometry = _geometry(design, spec.type, deck_level(problem)[2])
+    if geometry.get("deck_panel", 0.0) > 1.01 * bridge.spacing:
+        log.warning("the %s form loads its deck only every %.6g m, more coarsely than the "
+                    "reference's grid step of %.6g m: the deck is taken to span between them "
+                    "without being sized, which favours the form; use more stays or a closer "
+                    "spacing", spec.type, geometry["deck_panel"], bridge.spacing)
+    ref_volume = ref.volume if ref is not None else math.nan
+    return FormResult(spec=spec, design=design, start_volume=start.volume, volume=design.volume,
+                      weight=design.weight, reference=ref, reference_volume=ref_volume,
+                      ratio=design.volume / ref_volume,
+                      quantities=group_quantities(design, GROUPS[getattr(spec, "variant",
+                                                                         spec.type)]),
+                      geometry=geometry)

@@ -1,0 +1,98 @@
+"""Suspension topology: main cable, vertical hangers, tower, deck (half span).
+
+The tower stands at the pier or abutment line x = x_s and carries the main
+cable at height ``tower`` above the deck; the cable sags by ``sag`` to its
+lowest point on the mid-span line x = x_e.  Hangers at ``panels`` equal
+spacings join each deck node to the cable node above it.  With the parabolic
+shape the cable node at t = (x - x_s)/(x_e - x_s) hangs at
+``tower - sag (2t - t^2)`` (a parabola with its vertex at mid-span), so a free
+sag is one parameter; with the free shape every cable node's height is its own
+parameter.  The tower top's horizontal force is balanced by the next span
+(mirror line, repeating spans) or by an anchorage behind the abutment.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .builder import FrameBuilder, deck_level
+
+__all__ = ["suspension_frame", "parabola"]
+
+
+def parabola(t) -> np.ndarray:
+    """2t - t^2: the shape of a half parabola from its end (t = 0) to its vertex (t = 1). [-]"""
+    t = np.asarray(t, dtype=float)
+    return 2.0 * t - t * t
+
+
+def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: str = "parabolic",
+                     profile=None, sag_bounds: tuple[float, float] | None = None,
+                     tower_bounds: tuple[float, float] | None = None,
+                     height_bounds: tuple[float, float] | None = None):
+    """Frame (and free sag or cable heights, if any) of a suspension form on ``problem``.
+
+    Parameters
+    ----------
+    problem : Problem
+    panels : int
+        Hanger panels across the half span. [-]
+    tower : float
+        Height of the tower top above the deck. [m]
+    sag : float
+        Cable sag (tower top to mid-span cable node). [m]
+    shape : {"parabolic", "funicular", "free"}
+        With "free", each cable node's height is a parameter; otherwise the sag is.
+    profile : (panels + 1,) array, optional
+        Cable drop below the tower top over the sag, 0 at the tower and 1 at
+        mid-span (default: the parabola 2t - t^2). [-]
+    sag_bounds : (float, float), optional
+        Parabolic shape: least and largest sag when the sag is free. [m]
+    tower_bounds : (float, float), optional
+        Least and largest tower height when it is free.  With a parabolic or
+        funicular cable this parameter lifts the whole cable (the cable's
+        clearance above the deck at mid-span, tower - sag); with a free shape
+        it moves the tower top only. [m]
+    height_bounds : (float, float), optional
+        Free shape: least and largest height of a cable node above the deck. [m]
+        The mid-span node moves only when ``sag_bounds`` is also given.
+
+    Returns
+    -------
+    Frame, NodeMoves or None
+    """
+    b = FrameBuilder(problem)
+    xs, xe, zd = deck_level(problem)
+    x = xs + (xe - xs) * np.arange(panels + 1) / panels
+    shape_t = parabola((x - xs) / (xe - xs)) if profile is None else np.asarray(profile)
+    cable_z = zd + tower - sag * shape_t
+    base = b.node(xs, zd)
+    b.foundation(xs, base)
+    cable = [b.node(x[0], cable_z[0])]
+    b.member(base, cable[0], "compression", "tower")
+    for xi, zi in zip(x[1:], cable_z[1:]):
+        node = b.node(xi, zi)
+        cable.append(node)
+        b.member(b.node(xi, zd), node, "tension", "hanger")
+    b.chain(cable, "tension", "cable")
+    b.deck()
+    if shape != "free":
+        if sag_bounds is not None:
+            # with a free tower the sag parameter keeps the mid-span clearance and lifts the
+            # tower top; with a fixed tower it lowers the cable
+            lift = 1.0 if tower_bounds is not None else 0.0
+            b.parameter("sag", sag_bounds[0] - sag, sag_bounds[1] - sag,
+                        {(n, 1): lift - s for n, s in zip(cable, shape_t)})
+        if tower_bounds is not None:
+            b.parameter("cable clearance", tower_bounds[0] - tower, tower_bounds[1] - tower,
+                        {(n, 1): 1.0 for n in cable})
+    elif height_bounds is not None:
+        if tower_bounds is not None:
+            b.parameter("tower height", tower_bounds[0] - tower, tower_bounds[1] - tower,
+                        {(cable[0], 1): 1.0})
+        last = len(cable) if sag_bounds is not None else len(cable) - 1
+        for j in range(1, last):
+            h = cable_z[j] - zd
+            b.parameter(f"cable height {j}", height_bounds[0] - h, height_bounds[1] - h,
+                        {(cable[j], 1): 1.0})
+    return b.build()

@@ -1,0 +1,133 @@
+"""Solving one sweep case, in a worker process (local or on a Dask cluster).
+
+The functions here take and return plain picklable values and never raise for a
+bad case: a case's :class:`~bridgeopt.errors.InputError`,
+:class:`~bridgeopt.errors.SolveError` or any other exception becomes its row's
+``status`` and ``error``, so one bad case never stops a sweep.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from typing import Any
+
+import numpy as np
+
+from ..design import Design
+from ..errors import InputError, SolveError
+from ..forms import FormResult, ReferenceForm, form_problem, solve_form
+from ..geometry import optimize_geometry
+from ..layout import optimize_layout
+from ..scenario import Scenario, parse_scenario, solve_scenario
+
+__all__ = ["RESULT_COLUMNS", "STATUSES", "solve_case", "solve_reference", "reference_group",
+           "error_row"]
+
+#: Columns every row has after the inputs, with their units.
+RESULT_COLUMNS = {
+    "status": "ok, input-error, solve-failed or error",
+    "error": "the error message of a bad case (empty when ok)",
+    "volume_m3": "material volume of the design, whole structure [m3]",
+    "reference_volume_m3": "volume of the reference optimum on the same problem [m3]",
+    "ratio": "volume / reference volume [-] (1 for the reference itself)",
+    "weight_N": "self-weight of the design [N]",
+    "normalised_volume": "volume sigma / (deck_load span^2) [-] (bridges)",
+    "members": "members in the design (one model) [-]",
+    "seconds": "wall time of the case's own solve, in its worker [s]",
+}
+#: Main dimensions of a solved form, as extra columns [m].
+DIMENSIONS = ("pylon_height", "tower_height", "sag", "rise", "deck_panel")
+STATUSES = ("ok", "input-error", "solve-failed", "error")
+
+
+def error_row(status: str, message: str, seconds: float = 0.0) -> dict[str, Any]:
+    """The result columns of a bad case."""
+    return {"status": status, "error": " ".join(str(message).split()), "volume_m3": math.nan,
+            "reference_volume_m3": math.nan, "ratio": math.nan, "weight_N": math.nan,
+            "normalised_volume": math.nan, "members": math.nan, "seconds": seconds}
+
+
+def reference_group(scenario: Scenario):
+    """The key of the reference a case is compared with, and whether it is that reference.
+
+    Cases with equal keys share one reference solve: a bridge form's reference is
+    the layout optimum of :func:`~bridgeopt.forms.form_problem` (its supports
+    included) with the same solve options; a reference case provides it.
+    Layout scenarios are their own reference: ``(None, True)``.
+    """
+    if scenario.bridge is None:
+        return None, True
+    spec = scenario.form or ReferenceForm()
+    problem = form_problem(scenario.bridge, spec)
+    opts = scenario.solve
+    return (problem, opts.geometry_optimization, opts.member_adding), spec.type == "reference"
+
+
+def solve_reference(data: dict) -> tuple[Design | None, str]:
+    """The reference optimum of a case's form problem (shared by a group); (design, error)."""
+    try:
+        scenario = parse_scenario(data)
+        spec = scenario.form or ReferenceForm()
+        with np.errstate(over="ignore"):
+            design = optimize_layout(form_problem(scenario.bridge, spec),
+                                     member_adding=scenario.solve.member_adding,
+                                     batch=scenario.solve.batch)
+            if scenario.solve.geometry_optimization:
+                design = optimize_geometry(design)
+        return design, ""
+    except Exception as err:  # the forms then solve (and fail on) their own reference
+        return None, f"{type(err).__name__}: {err}"
+
+
+def _ok_row(scenario: Scenario, design: Design, reference_volume: float,
+            seconds: float, form: FormResult | None) -> dict[str, Any]:
+    bridge = scenario.bridge
+    row = {"status": "ok", "error": "", "volume_m3": design.volume,
+           "reference_volume_m3": reference_volume, "ratio": design.volume / reference_volume,
+           "weight_N": design.weight,
+           "normalised_volume": bridge.normalised_volume(design.volume) if bridge else math.nan,
+           "members": len(design.members), "seconds": seconds}
+    if form is not None:
+        for name in DIMENSIONS:
+            if name in form.geometry:
+                row[f"{name}_m"] = form.geometry[name]
+    return row
+
+
+def solve_case(data: dict, reference: Design | None = None) -> tuple[dict, Design | None]:
+    """Solve one case given as a scenario-file dict; (result columns, reference design).
+
+    Parameters
+    ----------
+    data : dict
+        The case in the scenario-file schema.
+    reference : Design, optional
+        The reference optimum of the case's group (see :func:`reference_group`);
+        a bridge form is compared with it instead of solving its own.
+
+    Returns
+    -------
+    row : dict
+        :data:`RESULT_COLUMNS` (and a form's main dimensions, ``pylon_height_m`` ...).
+    design : Design or None
+        The case's design when it is a reference (for the forms of its group).
+    """
+    t0 = time.perf_counter()
+    try:
+        scenario = parse_scenario(data)
+        with np.errstate(over="ignore"):
+            if scenario.form is not None and scenario.form.type != "reference":
+                form = solve_form(scenario.bridge, scenario.form, reference=reference,
+                                  member_adding=scenario.solve.member_adding)
+                return _ok_row(scenario, form.design, form.reference_volume,
+                               time.perf_counter() - t0, form), None
+            design = solve_scenario(scenario)
+        return _ok_row(scenario, design, design.volume, time.perf_counter() - t0, None), design
+    except InputError as err:
+        return error_row("input-error", str(err), time.perf_counter() - t0), None
+    except SolveError as err:
+        return error_row("solve-failed", f"{err.status}: {err.message}",
+                         time.perf_counter() - t0), None
+    except Exception as err:  # recorded, never stops the sweep
+        return error_row("error", f"{type(err).__name__}: {err}", time.perf_counter() - t0), None

@@ -1,0 +1,189 @@
+"""Where a sweep's results live: a journal, and the tables rewritten from it.
+
+``DIR/journal.jsonl`` gets one JSON line per finished case, flushed and
+fsync'ed as soon as the case finishes, so a killed run loses only the cases in
+flight; a half-written last line (the run killed while writing) is ignored on
+reading.  ``DIR/results.csv`` and ``DIR/results.parquet`` are rewritten from the
+journal atomically (a temporary file, then a rename), one row per case of the
+sweep in case order, and ``DIR/README.txt`` describes the columns and carries
+the cautions.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import tempfile
+from pathlib import Path
+from typing import Any, Callable
+
+from ..cautions import CAUTION_LINES, CAUTIONS
+from ..errors import InputError
+from .cases import RESULT_COLUMNS
+from .expand import Sweep
+
+__all__ = ["Journal", "write_tables", "results_frame", "JOURNAL", "CSV", "PARQUET", "README"]
+
+JOURNAL, CSV, PARQUET, README = "journal.jsonl", "results.csv", "results.parquet", "README.txt"
+LOCK = ".lock"
+
+
+def _plain(value: Any) -> Any:
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    if hasattr(value, "item"):  # numpy scalars
+        return _plain(value.item())
+    return value
+
+
+class Journal:
+    """The append-only record of finished cases in ``DIR/journal.jsonl``.
+
+    Parameters
+    ----------
+    folder : Path
+        The sweep's output folder (created if missing).
+    """
+
+    def __init__(self, folder: str | os.PathLike, *, lock: bool = False) -> None:
+        self.folder = Path(folder)
+        self._fh = None
+        self._lock = None
+        try:
+            self.folder.mkdir(parents=True, exist_ok=True)
+        except OSError as err:
+            raise InputError("--output", str(folder), f"a folder that can be created "
+                             f"({err.strerror})") from None
+        if lock:
+            self._take_lock()
+        self.path = self.folder / JOURNAL
+        self.rows: dict[str, dict] = {}
+        if self.path.exists():
+            with open(self.path, encoding="utf-8") as fh:
+                for line in fh:
+                    try:
+                        entry = json.loads(line)
+                        self.rows[entry["key"]] = entry["row"]
+                    except (json.JSONDecodeError, KeyError, TypeError):
+                        continue  # a line cut short by a killed run
+
+    def _take_lock(self) -> None:
+        """Refuse a second run writing to the same folder at the same time."""
+        import fcntl
+
+        fh = open(self.folder / LOCK, "a")
+        try:
+            # a POSIX record lock: held by this process only, not by the worker processes
+            # it forks, so it ends with the process however it ends
+            fcntl.lockf(fh.fileno(), fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except OSError:
+            fh.close()
+            raise InputError("--output", str(self.folder), "a folder no other sweep is "
+                             "writing to (another run holds its lock)") from None
+        self._lock = fh
+
+    def finished(self, *, failed_too: bool = True) -> set[str]:
+        """Keys of finished cases (with ``failed_too=False``, only those that succeeded)."""
+        return {k for k, r in self.rows.items() if failed_too or r.get("status") == "ok"}
+
+    def append(self, key: str, row: dict) -> None:
+        """Record one finished case durably (flush and fsync before returning)."""
+        row = {k: _plain(v) for k, v in row.items()}
+        if self._fh is None:
+            self._fh = open(self.path, "a", encoding="utf-8")
+            if self._fh.tell() > 0:  # a previous run may have been cut mid-line
+                self._fh.write("\n")
+        self._fh.write(json.dumps({"key": key, "row": row}, allow_nan=False) + "\n")
+        self._fh.flush()
+        os.fsync(self._fh.fileno())
+        self.rows[key] = row
+
+    def close(self) -> None:
+        """Close the journal and release the folder's lock."""
+        if self._fh is not None:
+            self._fh.close()
+            self._fh = None
+        if self._lock is not None:
+            self._lock.close()
+            self._lock = None
+
+
+def results_frame(sweep: Sweep, rows: dict[str, dict]):
+    """One row per finished case of ``sweep``, in case order: case, inputs, results."""
+    import pandas as pd
+
+    records = []
+    for case in sweep.cases:
+        if case.key in rows:
+            records.append({"case": case.index, "key": case.key, **case.inputs,
+                            **rows[case.key]})
+    df = pd.DataFrame.from_records(records)
+    if df.empty:
+        names = ["case", "key", *RESULT_COLUMNS]
+        return pd.DataFrame({n: pd.Series(dtype=object) for n in names})
+    first = ["case", "key"]
+    inputs = list(dict.fromkeys(k for c in sweep.cases for k in c.inputs))
+    results = [c for c in RESULT_COLUMNS if c in df] + [c for c in df if c not in first
+                                                        and c not in inputs
+                                                        and c not in RESULT_COLUMNS]
+    df = df[first + [c for c in inputs if c in df] + results]
+    for col in df.columns[df.dtypes == object]:
+        kinds = {type(v) for v in df[col] if v is not None and v == v}
+        if len(kinds) > 1:  # mixed values in one swept key: keep them as text
+            df[col] = [None if v is None or v != v else str(v) for v in df[col]]
+    return df
+
+
+def _atomic(path: Path, write: Callable[[str], None]) -> None:
+    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
+    os.close(fd)
+    try:
+        write(tmp)
+        with open(tmp, "rb") as fh:
+            os.fsync(fh.fileno())
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+
+
+def _readme(sweep: Sweep) -> str:
+    lines = [f"bridgeopt sweep results: {sweep.name} ({len(sweep)} cases, from {sweep.source})",
+             "", *CAUTION_LINES, "",
+             f"{CSV} and {PARQUET}: one row per finished case, in case order.",
+             "case: position of the case in the sweep (0-based); key: the case's identifier "
+             "(a re-run skips finished keys).",
+             "Input columns are the scenario-file keys, dotted as in docs/scenario.md "
+             "(bridge.span [m], bridge.deck_load [N/m], material.preset, form.type ...); "
+             "lists are written as JSON text.",
+             "Swept here: " + (", ".join(sweep.varied) or "nothing"), ""]
+    lines += [f"{name}: {text}" for name, text in RESULT_COLUMNS.items()]
+    lines += ["pylon_height_m, tower_height_m, sag_m, rise_m, deck_panel_m: main dimensions of a "
+              "solved form [m]", "", f"{JOURNAL}: the running record the tables are rebuilt from "
+              "(do not edit while a sweep runs).", ""]
+    return "\n".join(lines)
+
+
+def write_tables(sweep: Sweep, journal: Journal) -> None:
+    """Rewrite ``results.csv``, ``results.parquet`` and ``README.txt`` from the journal."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    df = results_frame(sweep, journal.rows)
+    folder = journal.folder
+    _atomic(folder / CSV, lambda tmp: df.to_csv(tmp, index=False))
+    table = pa.Table.from_pandas(df, preserve_index=False)
+    meta = dict(table.schema.metadata or {})
+    meta[b"bridgeopt.cautions"] = CAUTIONS.encode()
+    meta[b"bridgeopt.sweep"] = json.dumps({"name": sweep.name, "source": sweep.source,
+                                           "cases": len(sweep), "varied": sweep.varied}).encode()
+    table = table.replace_schema_metadata(meta)
+    _atomic(folder / PARQUET, lambda tmp: pq.write_table(table, tmp))
+    _atomic(folder / README, lambda tmp: Path(tmp).write_text(_readme(sweep), encoding="utf-8"))
