@@ -18,6 +18,9 @@ from .forms import (ArchForm, CableStayedForm, FormResult, ReferenceForm, Suspen
 from .frame import Frame, size_frame
 from .geometry import NodeMoves, optimize_geometry
 from .layout import optimize_layout
+from .loadcases import CaseStudy, LoadCase, UnitCosts, traffic_load
+from .multicase import CaseDesign, optimize_cases
+from .crossing import full_span_problem
 from .materials import GRAVITY, PRESETS, Material, material_from_name
 from .problem import Domain, LineLoad, PointLoad, Problem, Support
 
@@ -27,6 +30,8 @@ __all__ = [
     "material_from_name", "Domain", "LineLoad", "PointLoad", "Problem", "Support",
     "Frame", "size_frame", "NodeMoves", "optimize_geometry", "ArchForm", "CableStayedForm",
     "FormResult", "ReferenceForm", "SuspensionForm", "parse_form", "solve_form",
+    "CaseStudy", "LoadCase", "UnitCosts", "traffic_load", "CaseDesign", "optimize_cases",
+    "full_span_problem",
 ]
 
 __version__ = "0.1.0"

@@ -109,7 +109,7 @@ def format_inputs(scenario: Scenario) -> list[str]:
             _row("depth below deck", f"{_g(b.depth)} m"),
             _row("deck load", f"{_g(b.deck_load)} N/m ({_g(b.deck_load / 1e3)} kN/m)"),
             _row("divisions", f"{b.divisions} across the span (grid step {_g(b.spacing)} m; "
-                 f"half-span model)"),
+                 f"{'whole-span' if scenario.full_span else 'half-span'} model)"),
         ]
         tension, comp = b.material, b.compression_material
     else:
@@ -277,6 +277,8 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
         else:
             design = solve_scenario(scenario)
     wall = time.perf_counter() - t0
+    if scenario.study is not None:
+        return _report_cases(scenario, design, out, wall)
     if out is not None:
         try:
             write_json(out, design_to_dict(design, scenario=scenario, wall_seconds=wall,
@@ -284,6 +286,44 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
         except OSError as err:
             raise InputError("--json", str(out), f"a writable file ({err.strerror})") from None
     print(format_summary(scenario, design, wall, form=form))
+    if out is not None:
+        print(f"JSON written to {out}")
+    return EXIT_OK
+
+
+def _report_cases(scenario: Scenario, design, out: Path | None, wall: float) -> int:
+    """Summary and JSON of a multi-case (or priced) design (:mod:`bridgeopt.casereport`)."""
+    import dataclasses
+
+    from .casereport import case_design_to_dict, format_case_summary
+    from .multicase import single_case_reference
+
+    try:
+        with np.errstate(over="ignore"):
+            k, ref = single_case_reference(design.study)
+        stats = dict(design.stats, reference={"case": design.case_names[k],
+                                              "volume": ref.volume})
+        design = dataclasses.replace(design, stats=stats)
+    except (SolveError, InputError):
+        pass  # no single-case reference (the case alone cannot be carried): not reported
+
+    if out is not None:
+        try:
+            write_json(out, case_design_to_dict(design, scenario=scenario, wall_seconds=wall))
+        except OSError as err:
+            raise InputError("--json", str(out), f"a writable file ({err.strerror})") from None
+    header = [f"bridgeopt {__version__}: {scenario.name} ({scenario.kind} scenario, "
+              + ("whole-span model, " if scenario.full_span else "") + "load cases)"]
+    if scenario.source and scenario.source != "<dict>":
+        header.append(f"  source: {scenario.source}")
+    inputs = format_inputs(scenario)
+    if scenario.full_span:
+        if scenario.piers or scenario.anchorages:
+            inputs.append(_row("piers, anchorages", f"x = {list(scenario.piers)} m; "
+                               f"{[list(p) for p in scenario.anchorages]} m"))
+        if scenario.channels:
+            inputs.append(_row("channels", f"{len(scenario.channels)} clearance envelope(s)"))
+    print(format_case_summary(design, header=header, inputs=inputs, wall_seconds=wall))
     if out is not None:
         print(f"JSON written to {out}")
     return EXIT_OK

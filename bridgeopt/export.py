@@ -82,7 +82,9 @@ def _derived(problem, scenario) -> dict:
     bridge = getattr(scenario, "bridge", None)
     if bridge is not None:
         out.update({
-            "model": "half span between mirror lines, reported as one whole span",
+            "model": ("whole span (load cases, piers, anchorages or channels)"
+                      if getattr(scenario, "full_span", False) else
+                      "half span between mirror lines, reported as one whole span"),
             "normalised_span": bridge.normalised_span,
             "rise_cells": bridge.rise_cells, "depth_cells": bridge.depth_cells,
         })

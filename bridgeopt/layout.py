@@ -125,8 +125,9 @@ def scales(problem: Problem) -> tuple[float, float, float]:
     return max(x1 - x0, z1 - z0), problem.total_applied_load(), problem.strength("tension")
 
 
-def _solve(problem: Problem, *, member_adding: bool, batch: int | None, coarse_start: bool):
-    """Grid, loads, LP data, LP optimum and scales of ``problem``."""
+def _solve(problem: Problem, *, member_adding: bool, batch: int | None, coarse_start: bool,
+           allowed: np.ndarray | None = None):
+    """Grid, loads, LP data, LP optimum and scales of ``problem`` (``allowed``: see LPData)."""
     grid = build_grid(problem)
     f = nodal_loads(problem, grid)
     fixed = restrained_rows(problem, grid)
@@ -138,7 +139,7 @@ def _solve(problem: Problem, *, member_adding: bool, batch: int | None, coarse_s
         k={s: problem.k(s) * ref_len for s in SENSES},
         cost_scale={s: ref_sigma / problem.strength(s) for s in SENSES},
         load=(f / ref_force).ravel(), fixed=fixed,
-        reach=np.abs(grid.ij[b] - grid.ij[a]).max(axis=1))
+        reach=np.abs(grid.ij[b] - grid.ij[a]).max(axis=1), allowed=allowed)
     guess = None
     if member_adding and coarse_start and min(problem.grid_shape()) >= 2 * COARSE_MIN:
         guess = _coarse_duals(problem, grid)
@@ -188,7 +189,42 @@ def optimize_layout(problem: Problem, *, member_adding: bool = True,
     """
     grid, f, data, sol, refs = _solve(problem, member_adding=member_adding, batch=batch,
                                       coarse_start=coarse_start)
+    if problem.domain.excluded and not problem.weightless:
+        grid, f, data, sol, refs = _keep_curves_clear(
+            problem, grid, data, sol, member_adding=member_adding, batch=batch,
+            coarse_start=coarse_start)
     return design_from_lp(problem, grid, data, sol, f, *refs)
+
+
+#: Most re-solves that forbid curved members entering an excluded zone.
+CLEARANCE_ROUNDS = 50
+
+
+def _keep_curves_clear(problem: Problem, grid: Grid, data: LPData, sol: LPSolution, **how):
+    """Re-solve, forbidding active curved members whose centreline enters an excluded zone.
+
+    See :mod:`bridgeopt.clearance`.  Raises :class:`SolveError` when no structure is
+    left that keeps clear of the zones.
+    """
+    from .clearance import curves_entering_zones
+
+    allowed = np.ones((len(data.a), 2), dtype=bool)
+    for _ in range(CLEARANCE_ROUNDS):
+        a, b = data.a[sol.pair], data.b[sol.pair]
+        senses = np.array(SENSES)[sol.sense]
+        bad = curves_entering_zones(problem, grid.xz[a], grid.xz[b], senses)
+        if not bad.any():
+            return grid, nodal_loads(problem, grid), data, sol, scales(problem)
+        allowed[sol.pair[bad], sol.sense[bad]] = False
+        try:
+            grid, _, data, sol, _ = _solve(problem, allowed=allowed, **how)
+        except SolveError as err:
+            if err.status != "infeasible":
+                raise
+            raise SolveError("infeasible", f"{err.message} with every member, curved "
+                             "centrelines included, clear of the excluded zones") from None
+    raise SolveError("clearance", f"curved members still entered an excluded zone after "
+                     f"{CLEARANCE_ROUNDS} re-solves")
 
 
 def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,

@@ -49,9 +49,9 @@ __all__ = ["SolveOptions", "Scenario", "load_scenario", "parse_scenario", "solve
 #: Valid keys of every table, in the order the documentation lists them.
 KEYS: dict[str, tuple[str, ...]] = {
     "layout": ("name", "description", "copies", "domain", "material", "compression_material",
-               "support", "load", "line_load", "symmetry", "solve"),
+               "support", "load", "line_load", "symmetry", "solve", "load_case", "cost"),
     "bridge-file": ("name", "description", "bridge", "material", "compression_material",
-                    "form", "solve"),
+                    "form", "solve", "load_case", "cost"),
     "domain": ("x", "z", "outline", "spacing", "excluded"),
     "domain.excluded": ("outline",),
     "material": ("preset", "name", "strength", "tension_strength", "compression_strength",
@@ -60,8 +60,12 @@ KEYS: dict[str, tuple[str, ...]] = {
     "load": ("at", "force"),
     "line_load": ("from", "to", "intensity"),
     "symmetry": ("x",),
-    "bridge": ("span", "rise", "depth", "deck_load", "arrangement", "divisions", "name"),
+    "bridge": ("span", "rise", "depth", "deck_load", "arrangement", "divisions", "name",
+               "piers", "anchorages", "channel"),
+    "bridge.channel": ("outline",),
     "solve": ("member_adding", "batch", "geometry_optimization"),
+    "load_case": ("name", "pattern", "intensity", "side", "from", "to", "load", "line_load"),
+    "cost": ("tension", "compression", "basis", "currency"),
 }
 
 #: Keys that are planned but not available in this version (clear message, not a typo hint).
@@ -445,11 +449,18 @@ def _layout(data: Mapping, name: str) -> Problem:
         copies = _number("copies", data["copies"],
                          "a number > 0 (copies of the modelled part in the reported structure)",
                          lambda v: v > 0)
+    loads = _entries(data, "load", _load)
+    line_loads = _entries(data, "line_load", _line_load)
+    if not loads and not line_loads and "load_case" in data:
+        # no permanent loads: the first case's loads place the problem's loads (see Scenario)
+        from .casefile import layout_cases
+
+        first = layout_cases(data)[0]
+        loads, line_loads = first.loads, first.line_loads
     problem = Problem(
         domain=domain, spacing=spacing, material=material,
         supports=_entries(data, "support", _support),
-        loads=_entries(data, "load", _load),
-        line_loads=_entries(data, "line_load", _line_load),
+        loads=loads, line_loads=line_loads,
         mirror_lines=_entries(data, "symmetry", _symmetry),
         compression_material=comp, copies=copies, name=name)
     _check_on_grid(problem)
@@ -564,13 +575,44 @@ class Scenario:
     description: str = ""
     source: str = field(default="<dict>", compare=False)
     form: FormSpec | None = None
+    cases: tuple = ()
+    costs: object = None
+    permanent: bool = True
+    piers: tuple = ()
+    anchorages: tuple = ()
+    channels: tuple = ()
     problem: Problem = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         if (self.layout is None) == (self.bridge is None):
             raise ValueError("a Scenario holds exactly one of layout and bridge")
-        problem = self.layout if self.layout is not None else self.bridge.to_problem()
+        if self.layout is not None:
+            problem = self.layout
+        elif self.full_span:
+            from .crossing import full_span_problem
+
+            problem = full_span_problem(self.bridge, piers=self.piers,
+                                        anchorages=self.anchorages, channels=self.channels)
+        else:
+            problem = self.bridge.to_problem()
         object.__setattr__(self, "problem", problem)
+
+    @property
+    def full_span(self) -> bool:
+        """A bridge modelled over the whole span (load cases, piers, anchorages or channels)."""
+        return self.bridge is not None and bool(self.cases or self.piers or self.anchorages
+                                                or self.channels)
+
+    @property
+    def study(self):
+        """The :class:`~bridgeopt.loadcases.CaseStudy` of a file with ``[[load_case]]`` or
+        ``[cost]`` (a cost alone: one case, the permanent loads); None otherwise."""
+        if not self.cases and self.costs is None:
+            return None
+        from .loadcases import CaseStudy, LoadCase
+
+        cases = self.cases or (LoadCase("permanent"),)
+        return CaseStudy(self.problem, cases, self.costs, self.permanent)
 
     @property
     def kind(self) -> str:
@@ -601,6 +643,22 @@ class Scenario:
                 out["form"] = self.form.to_dict()
         else:
             out.update(_problem_dict(self.layout))
+            if not self.permanent:
+                out.pop("load", None)
+                out.pop("line_load", None)
+        if self.bridge is not None and (self.piers or self.anchorages or self.channels):
+            out["bridge"].update(piers=list(self.piers),
+                                 anchorages=[list(p) for p in self.anchorages])
+            if self.channels:
+                out["bridge"]["channel"] = [{"outline": [list(pt) for pt in c]}
+                                            for c in self.channels]
+        if self.cases or self.costs is not None:
+            from .casefile import cases_dict, cost_dict
+
+            if self.cases:
+                out["load_case"] = cases_dict(self.cases, bridge=self.bridge is not None)
+            if self.costs is not None:
+                out["cost"] = cost_dict(self.costs)
         solve: dict[str, Any] = {"member_adding": self.solve.member_adding}
         if self.solve.batch is not None:
             solve["batch"] = self.solve.batch
@@ -672,14 +730,58 @@ def parse_scenario(data: Mapping, *, source: str = "<dict>") -> Scenario:
         form = parse_form(data["form"]) if "form" in data else None
         if form is not None and form.type != "reference":
             build_form(bridge, form)  # the form must fit the domain: report it before solving
-        return Scenario(name=bridge.name, bridge=bridge, solve=solve, description=description,
-                        source=source, form=form)
+        return _with_cases(data, Scenario(name=bridge.name, bridge=bridge, solve=solve,
+                                          description=description, source=source, form=form))
     if not has_domain:
         raise InputError("domain", _MISSING, "a [domain] table (layout problem) or a [bridge] "
                          "table (bridge problem)")
     problem = _layout(data, _name(data, "layout problem"))
-    return Scenario(name=problem.name, layout=problem, solve=solve, description=description,
-                    source=source)
+    return _with_cases(data, Scenario(name=problem.name, layout=problem, solve=solve,
+                                      description=description, source=source))
+
+
+def _with_cases(data: Mapping, scenario: Scenario) -> Scenario:
+    """Add ``[[load_case]]``, ``[cost]`` and a bridge's piers, anchorages and channels."""
+    if not any(k in data for k in ("load_case", "cost")) and not (
+            scenario.bridge is not None
+            and any(k in data["bridge"] for k in ("piers", "anchorages", "channel"))):
+        return scenario
+    from .casefile import (bridge_cases, check_cases_on_grid, cost_table, crossing_keys,
+                           layout_cases)
+
+    if scenario.form is not None and scenario.form.type != "reference":
+        key = next(k for k in ("load_case", "cost") if k in data) if any(
+            k in data for k in ("load_case", "cost")) else next(
+            f"bridge.{k}" for k in ("piers", "anchorages", "channel") if k in data["bridge"])
+        raise InputError(key, _Shown("..."), "left out of a file with a [form] table (forms "
+                         "are single-case half-span studies; load cases, costs, piers, "
+                         "anchorages and channels use the whole-span reference)")
+    changes: dict[str, Any] = {}
+    if scenario.bridge is not None:
+        piers, anch, channels = crossing_keys(data["bridge"])
+        changes.update(piers=piers, anchorages=anch, channels=channels)
+        if "load_case" in data:
+            changes["cases"] = bridge_cases(data, scenario.bridge.span)
+    elif "load_case" in data:
+        changes["cases"] = layout_cases(data)
+        changes["permanent"] = "load" in data or "line_load" in data
+    if scenario.solve.geometry_optimization and ("load_case" in data or "cost" in data):
+        raise InputError("solve.geometry_optimization", True, "false with [[load_case]] or "
+                         "[cost] (geometry optimization is for single-case volume studies)")
+    out = replace(scenario, **changes)
+    out = replace(out, costs=cost_table(data, out.problem))
+    try:
+        check_cases_on_grid(out.problem, out.cases)
+        if out.full_span:
+            from .layout import restrained_rows
+
+            restrained_rows(out.problem, build_grid(out.problem))
+    except InputError as err:
+        if err.field.startswith("support"):
+            raise InputError("bridge.anchorages", err.value, "points at grid nodes of the "
+                             "domain, outside the channels") from None
+        raise
+    return out
 
 
 def load_scenario(path: str | Path) -> Scenario:
@@ -717,6 +819,10 @@ def solve_scenario(scenario: Scenario, *, member_adding: bool | None = None) -> 
 
     A bridge's design is reported per whole span (the half-span model times two).
 
+    A scenario with ``[[load_case]]`` or ``[cost]`` returns a
+    :class:`~bridgeopt.multicase.CaseDesign` from
+    :func:`~bridgeopt.multicase.optimize_cases` instead of a :class:`Design`.
+
     Raises
     ------
     SolveError
@@ -724,6 +830,10 @@ def solve_scenario(scenario: Scenario, *, member_adding: bool | None = None) -> 
     """
     opts = scenario.solve
     adding = opts.member_adding if member_adding is None else member_adding
+    if scenario.study is not None:
+        from .multicase import optimize_cases
+
+        return optimize_cases(scenario.study, member_adding=adding, batch=opts.batch)
     design = optimize_layout(scenario.problem, member_adding=adding, batch=opts.batch)
     if opts.geometry_optimization:
         design = optimize_geometry(design)
