@@ -243,7 +243,9 @@ def test_a_killed_run_keeps_its_finished_cases(tmp_path):
     """SIGKILL a running `bridgeopt sweep`, then finish it: only the missing cases run."""
     path = tmp_path / "slow.toml"
     path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = [16, 20]")
-                    .replace("span = [400.0, 600.0]", "span = [400.0, 500.0, 600.0]"))
+                    .replace("span = [400.0, 600.0]",
+                             "span = [" + ", ".join(str(400.0 + 20 * i) for i in range(12)) + "]"))
+    # 72 cases, so that the sweep cannot finish between the first rows and the Ctrl-C
     sweep = load_sweep(path)
     out = tmp_path / "out"
     proc = subprocess.Popen([sys.executable, "-m", "bridgeopt", "sweep", str(path), "-o",
@@ -272,7 +274,9 @@ def test_a_killed_run_keeps_its_finished_cases(tmp_path):
 def test_ctrl_c_stops_the_sweep_and_keeps_what_finished(tmp_path):
     path = tmp_path / "slow.toml"
     path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = [16, 20]")
-                    .replace("span = [400.0, 600.0]", "span = [400.0, 500.0, 600.0]"))
+                    .replace("span = [400.0, 600.0]",
+                             "span = [" + ", ".join(str(400.0 + 20 * i) for i in range(12)) + "]"))
+    # 72 cases, so that the sweep cannot finish between the first rows and the Ctrl-C
     out = tmp_path / "out"
     proc = subprocess.Popen([sys.executable, "-m", "bridgeopt", "sweep", str(path), "-o",
                              str(out), "--jobs", "2"], stdout=subprocess.PIPE,
