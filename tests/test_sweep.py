@@ -367,3 +367,25 @@ def test_cli_sweep(tmp_path):
     bad = subprocess.run([sys.executable, "-m", "bridgeopt", "sweep", str(path)],
                          capture_output=True, text=True, timeout=120)
     assert bad.returncode == 2
+
+
+def test_sweep_over_a_load_case_study(tmp_path):
+    """[[load_case]] entries all apply in every case (not alternatives); each row is compared
+    with the heaviest case alone and says how many members each case governs."""
+    data = {"name": "Tarnby Flats traffic options",   # a fictional crossing
+            "bridge": {"span": [240.0, 300.0], "rise": 60.0, "depth": 0.0, "deck_load": 1.0e5,
+                       "arrangement": "single", "divisions": 8},
+            "material": {"preset": "weightless-steel"},
+            "load_case": [{"name": "full", "pattern": "full", "intensity": 4.0e4},
+                          {"name": "half", "pattern": "half", "side": "left",
+                           "intensity": 4.0e4}]}
+    sweep = expand_sweep(data)
+    assert len(sweep.cases) == 2
+    outcome = run_sweep(sweep, tmp_path, jobs=1)
+    rows = pd.read_csv(tmp_path / "results.csv")
+    assert (rows["status"] == "ok").all(), rows["error"].tolist()
+    # weightless: carrying both cases needs at least the heaviest case alone (LP bound)
+    assert (rows["ratio"] >= 1 - 1e-6).all()
+    assert (rows["governs_full"] + rows["governs_half"] == rows["members"]).all()
+    assert rows["cost"].notna().all()
+    assert outcome is not None

@@ -19,6 +19,7 @@ from ..errors import InputError, SolveError
 from ..forms import FormResult, ReferenceForm, form_problem, solve_form
 from ..geometry import optimize_geometry
 from ..layout import optimize_layout
+from ..multicase import single_case_reference
 from ..scenario import Scenario, parse_scenario, solve_scenario
 
 __all__ = ["RESULT_COLUMNS", "STATUSES", "solve_case", "solve_reference", "reference_group",
@@ -56,7 +57,7 @@ def reference_group(scenario: Scenario):
     included) with the same solve options; a reference case provides it.
     Layout scenarios are their own reference: ``(None, True)``.
     """
-    if scenario.bridge is None:
+    if scenario.bridge is None or scenario.study is not None:
         return None, True
     spec = scenario.form or ReferenceForm()
     problem = form_problem(scenario.bridge, spec)
@@ -95,6 +96,20 @@ def _ok_row(scenario: Scenario, design: Design, reference_volume: float,
     return row
 
 
+def _case_row(scenario: Scenario, design, seconds: float) -> dict[str, Any]:
+    """Result columns of a load-case study: compared with its heaviest case alone."""
+    _, single = single_case_reference(scenario.study)
+    bridge = scenario.bridge
+    row = {"status": "ok", "error": "", "volume_m3": design.volume,
+           "reference_volume_m3": single.volume, "ratio": design.volume / single.volume,
+           "weight_N": design.weight,
+           "normalised_volume": bridge.normalised_volume(design.volume) if bridge else math.nan,
+           "members": len(design.start), "seconds": seconds, "cost": design.cost}
+    for name, count in design.governing_counts().items():
+        row[f"governs_{name}"] = count
+    return row
+
+
 def solve_case(data: dict, reference: Design | None = None) -> tuple[dict, Design | None]:
     """Solve one case given as a scenario-file dict; (result columns, reference design).
 
@@ -123,6 +138,8 @@ def solve_case(data: dict, reference: Design | None = None) -> tuple[dict, Desig
                 return _ok_row(scenario, form.design, form.reference_volume,
                                time.perf_counter() - t0, form), None
             design = solve_scenario(scenario)
+            if scenario.study is not None:
+                return _case_row(scenario, design, time.perf_counter() - t0), None
         return _ok_row(scenario, design, design.volume, time.perf_counter() - t0, None), design
     except InputError as err:
         return error_row("input-error", str(err), time.perf_counter() - t0), None

@@ -57,10 +57,11 @@ __all__ = ["Case", "Sweep", "expand_sweep", "load_sweep", "case_key", "flatten"]
 #: Tables written once in a scenario file; in a sweep file a list of them is a list of alternatives.
 SINGLE_TABLES = {("bridge",): "bridge", ("material",): "material",
                  ("compression_material",): "material", ("form",): "form",
-                 ("solve",): "solve", ("domain",): "domain"}
+                 ("solve",): "solve", ("domain",): "domain", ("cost",): "cost"}
 #: Arrays of tables in a scenario file (each entry applies; not alternatives).
 ARRAY_TABLES = {("support",): "support", ("load",): "load", ("line_load",): "line_load",
-                ("symmetry",): "symmetry", ("domain", "excluded"): "domain.excluded"}
+                ("symmetry",): "symmetry", ("domain", "excluded"): "domain.excluded",
+                ("load_case",): "load_case"}
 #: How deeply a value is nested in lists in a scenario file (0 for a number or a string).
 LIST_DEPTH = {("domain", "x"): 1, ("domain", "z"): 1, ("domain", "outline"): 2,
               ("domain", "excluded", "outline"): 2, ("support", "at"): 1, ("load", "at"): 1,
