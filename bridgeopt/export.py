@@ -19,7 +19,6 @@ from __future__ import annotations
 import json
 import math
 import os
-import tempfile
 from pathlib import Path
 from typing import Any
 
@@ -27,6 +26,7 @@ import numpy as np
 
 from .cautions import CAUTION_LINES, CAUTIONS
 from .design import Design
+from .files import atomic_write
 from .materials import GRAVITY
 from .scenario import Scenario, _problem_dict
 
@@ -192,23 +192,5 @@ def write_json(path: str | os.PathLike, data: dict) -> Path:
     A reader never sees a half-written file; on failure the old file, if any,
     is left as it was.
     """
-    path = Path(path)
     text = to_json(data)
-    fd, tmp = tempfile.mkstemp(dir=path.parent if str(path.parent) else ".",
-                               prefix=f".{path.name}.", suffix=".json.tmp")
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes the file private; use the usual mode
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-    return path
+    return atomic_write(path, lambda tmp: Path(tmp).write_text(text, encoding="utf-8"))

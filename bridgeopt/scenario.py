@@ -27,7 +27,6 @@ from __future__ import annotations
 import difflib
 import math
 import numbers
-import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Mapping
@@ -37,6 +36,7 @@ from .design import Design
 from .errors import InputError
 from .forms.build import build_form
 from .forms.specs import FormSpec, parse_form
+from .files import read_toml
 from .geometry import optimize_geometry
 from .ground import build_grid
 from .layout import nodal_loads, optimize_layout, restrained_rows
@@ -794,20 +794,7 @@ def load_scenario(path: str | Path) -> Scenario:
         (the field ``"file"`` for the first two).
     """
     path = Path(path)
-    try:
-        text = path.read_bytes().decode("utf-8-sig")  # a byte-order mark is tolerated
-    except FileNotFoundError:
-        raise InputError("file", str(path), "an existing scenario file (.toml)") from None
-    except IsADirectoryError:
-        raise InputError("file", str(path), "a scenario file (.toml), not a directory") from None
-    except UnicodeDecodeError:
-        raise InputError("file", str(path), "a UTF-8 text file in TOML") from None
-    except OSError as err:
-        raise InputError("file", str(path), f"a readable file ({err.strerror})") from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as err:
-        raise InputError("file", str(path), f"a TOML document; {err}") from None
+    data = read_toml(path, "scenario file")
     return parse_scenario(data, source=str(path))
 
 

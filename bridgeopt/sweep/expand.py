@@ -43,13 +43,13 @@ import difflib
 import hashlib
 import itertools
 import json
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Mapping
 
 from ..errors import InputError
 from ..forms.specs import FORM_TYPES, form_keys
+from ..files import read_toml
 from ..scenario import KEYS
 
 __all__ = ["Case", "Sweep", "expand_sweep", "load_sweep", "case_key", "flatten"]
@@ -283,18 +283,5 @@ def expand_sweep(data: Mapping, *, source: str = "<dict>") -> Sweep:
 def load_sweep(path: str | Path) -> Sweep:
     """Read a sweep file (TOML) and expand it; see :func:`expand_sweep`."""
     path = Path(path)
-    try:
-        text = path.read_bytes().decode("utf-8-sig")
-    except FileNotFoundError:
-        raise InputError("file", str(path), "an existing sweep file (.toml)") from None
-    except IsADirectoryError:
-        raise InputError("file", str(path), "a sweep file (.toml), not a directory") from None
-    except UnicodeDecodeError:
-        raise InputError("file", str(path), "a UTF-8 text file in TOML") from None
-    except OSError as err:
-        raise InputError("file", str(path), f"a readable file ({err.strerror})") from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as err:
-        raise InputError("file", str(path), f"a TOML document; {err}") from None
+    data = read_toml(path, "sweep file")
     return expand_sweep(data, source=str(path))

@@ -14,12 +14,12 @@ from __future__ import annotations
 import json
 import math
 import os
-import tempfile
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any
 
 from ..cautions import CAUTION_LINES, CAUTIONS
 from ..errors import InputError
+from ..files import atomic_write
 from .cases import RESULT_COLUMNS
 from .expand import Sweep
 
@@ -135,25 +135,6 @@ def results_frame(sweep: Sweep, rows: dict[str, dict]):
     return df
 
 
-def _atomic(path: Path, write: Callable[[str], None]) -> None:
-    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
-    os.close(fd)
-    try:
-        write(tmp)
-        with open(tmp, "rb") as fh:
-            os.fsync(fh.fileno())
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-
-
 def _readme(sweep: Sweep) -> str:
     lines = [f"bridgeopt sweep results: {sweep.name} ({len(sweep)} cases, from {sweep.source})",
              "", *CAUTION_LINES, "",
@@ -178,12 +159,12 @@ def write_tables(sweep: Sweep, journal: Journal) -> None:
 
     df = results_frame(sweep, journal.rows)
     folder = journal.folder
-    _atomic(folder / CSV, lambda tmp: df.to_csv(tmp, index=False))
+    atomic_write(folder / CSV, lambda tmp: df.to_csv(tmp, index=False))
     table = pa.Table.from_pandas(df, preserve_index=False)
     meta = dict(table.schema.metadata or {})
     meta[b"bridgeopt.cautions"] = CAUTIONS.encode()
     meta[b"bridgeopt.sweep"] = json.dumps({"name": sweep.name, "source": sweep.source,
                                            "cases": len(sweep), "varied": sweep.varied}).encode()
     table = table.replace_schema_metadata(meta)
-    _atomic(folder / PARQUET, lambda tmp: pq.write_table(table, tmp))
-    _atomic(folder / README, lambda tmp: Path(tmp).write_text(_readme(sweep), encoding="utf-8"))
+    atomic_write(folder / PARQUET, lambda tmp: pq.write_table(table, tmp))
+    atomic_write(folder / README, lambda tmp: Path(tmp).write_text(_readme(sweep), encoding="utf-8"))
