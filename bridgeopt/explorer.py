@@ -147,7 +147,7 @@ class Explorer:
         self.error = None
         other = results[form]
         self.message.value = "" if other.status == "optimal" else message_html(
-            other.message + " Showing the reference optimum.", "note")
+            other.message + "; showing the reference optimum only.", "note")
         self.results = results
         self.comparison = study.comparison_table(bridge, results)
         self.quantities = {n: study.quantities(o.design) for n, o in results.items()

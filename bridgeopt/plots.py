@@ -195,31 +195,28 @@ def options_figure(options: Mapping[str, object], *, width_by: str = "force",
     """
     from plotly.subplots import make_subplots
 
-    names = list(options)
     designs = {n: getattr(o, "design", o) for n, o in options.items()}
-    titles = []
-    for n in names:
-        d = designs[n]
-        titles.append(f"{n}: {d.volume:,.4g} m3" if d is not None else f"{n}: not drawn")
-    fig = make_subplots(rows=len(names), cols=1, subplot_titles=titles, shared_xaxes=True,
-                        vertical_spacing=0.12 / max(1, len(names) - 1) if len(names) > 1 else 0)
-    scale = max([float(_measure(d, width_by).max()) for d in designs.values()
-                 if d is not None and len(d.members)] or [0.0])
-    legend_done = False
+    names = [n for n, d in designs.items() if d is not None]
+    missing = [getattr(options[n], "message", "") or f"{n}: not available"
+               for n, d in designs.items() if d is None]
+    rows = max(1, len(names))
+    fig = make_subplots(rows=rows, cols=1, shared_xaxes=True,
+                        subplot_titles=[f"{n}: {designs[n].volume:,.4g} m3" for n in names],
+                        vertical_spacing=0.12 / (rows - 1) if rows > 1 else 0.1)
+    scale = max([float(_measure(designs[n], width_by).max()) for n in names
+                 if len(designs[n].members)] or [0.0])
     for i, n in enumerate(names, start=1):
-        d = designs[n]
-        if d is None:
-            msg = getattr(options[n], "message", "") or "not available"
-            fig.add_annotation(text=_wrap(msg), showarrow=False, xref=f"x{i} domain" if i > 1
-                               else "x domain", yref=f"y{i} domain" if i > 1 else "y domain",
-                               x=0.5, y=0.5, font={"size": 13})
-            continue
-        _add_design(fig, d, scale=scale, width_by=width_by, legend=not legend_done, row=i, col=1)
-        legend_done = True
+        _add_design(fig, designs[n], scale=scale, width_by=width_by, legend=i == 1, row=i, col=1)
         fig.update_yaxes(scaleanchor=f"x{i}" if i > 1 else "x", scaleratio=1, row=i, col=1,
                          title_text="z [m]")
-    fig.update_xaxes(title_text="x [m]", row=len(names), col=1)
-    _layout(fig, title, max(320, height_per_panel * len(names) + 80))
+    fig.update_xaxes(title_text="x [m]", row=rows, col=1)
+    if missing:
+        fig.add_annotation(text=_wrap("Not drawn: " + "; ".join(missing), 120), showarrow=False,
+                           xref="paper", yref="paper", x=0, y=1.0, yanchor="bottom",
+                           xanchor="left", font={"size": 11})
+    _layout(fig, title, max(320, height_per_panel * rows + 100))
+    if missing:
+        fig.update_layout(margin={"t": 100})
     return fig
 
 
@@ -257,7 +254,7 @@ def ratio_bar(table, *, title: str | None = "Volume against the reference optimu
         x=list(ok["option"]), y=list(ok["ratio_to_reference"]),
         marker_color=[colour_of[o] for o in ok["option"]],
         text=[f"{r:.3g}" if math.isfinite(r) else "" for r in ok["ratio_to_reference"]],
-        textposition="outside", name="volume / reference volume",
+        textposition="outside", name="volume / reference volume", width=0.5,
         hovertext=[f"{v:,.5g} m3" for v in ok["volume_m3"]], hoverinfo="text+x"))
     fig.add_hline(y=1.0, line={"color": PALETTE["deck"], "dash": "dot"})
     missing = table[table["status"] != "optimal"]

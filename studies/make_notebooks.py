@@ -65,7 +65,6 @@ NOTEBOOKS = {
         "explorer = Explorer(span=span, rise=rise, depth=depth, deck_load=deck_load,\n"
         "                    material=material, arrangement=arrangement, form=form,\n"
         "                    pylons=pylons, divisions=divisions, name=name)\n"
-        "workbook.show(workbook.forms_note([form]))\n"
         "explorer.show()",
         md("Export this study as one HTML file for the client (or run "
         "`bridgeopt report studies/explorer.ipynb -o explorer.html` in a terminal):"),
