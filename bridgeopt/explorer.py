@@ -196,6 +196,7 @@ class Explorer:
         return {"error": self.error, "message": self.message.value,
                 "reference_volume": ref.design.volume if ref and ref.design else None,
                 "traces": len(self.figure.data) if self.figure is not None else 0,
+                "title": self.figure.layout.title.text if self.figure is not None else "",
                 "span": float(self.controls["span"].value)}
 
     def widget(self):
