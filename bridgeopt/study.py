@@ -23,6 +23,7 @@ column name.  Nothing here draws (see :mod:`bridgeopt.plots`).
 from __future__ import annotations
 
 import dataclasses
+import importlib
 import math
 import time
 from dataclasses import dataclass
@@ -83,8 +84,24 @@ def unregister_form(name: str) -> None:
     FORM_SOLVERS.pop(name, None)
 
 
+def _load_forms() -> None:
+    """Import :mod:`bridgeopt.forms` once if it exists (it registers its solvers here)."""
+    if _FORMS_MODULE_TRIED:
+        return
+    _FORMS_MODULE_TRIED.append(True)
+    try:
+        importlib.import_module(f"{__package__}.forms")
+    except ModuleNotFoundError as err:
+        if err.name != f"{__package__}.forms":
+            raise
+
+
+_FORMS_MODULE_TRIED: list[bool] = []
+
+
 def available_forms() -> tuple[str, ...]:
     """Known forms first (in :data:`KNOWN_FORMS` order), then any other registered names."""
+    _load_forms()
     extra = tuple(n for n in FORM_SOLVERS if n not in KNOWN_FORMS)
     return KNOWN_FORMS + extra
 
@@ -142,6 +159,7 @@ def solve_option(bridge: BridgeScenario, name: str,
     options : mapping, optional
         Passed to the form's solver (e.g. ``{"pylons": 2}``).
     """
+    _load_forms()
     t0 = time.perf_counter()
     if name == REFERENCE:
         fn = solve_reference
