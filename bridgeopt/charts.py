@@ -31,7 +31,7 @@ def _base(title, height=420):
     fig = go.Figure()
     fig.update_layout(title=title, height=height, template="simple_white",
                       margin={"l": 70, "r": 20, "t": 60, "b": 60},
-                      legend={"orientation": "h", "y": -0.2, "x": 0}, hovermode="closest")
+                      legend={"orientation": "h", "y": -0.22, "x": 0}, hovermode="closest")
     return fig
 
 
@@ -61,17 +61,20 @@ def _mark_impossible(fig, table, x: str, names) -> None:
                            font={"size": 11, "color": option_style(i)["color"]})
 
 
-def _lines(fig, table, x: str, y: str, names, hover: str, label=lambda n: n) -> None:
+def _lines(fig, table, x: str, y: str, names, hover: str, offset: int = 0) -> None:
+    """One line per option that solved somewhere (styles by position in ``names``)."""
     import plotly.graph_objects as go
 
     for i, name in enumerate(names):
         rows = table[table["option"] == name].sort_values(x)
         ok = rows["status"] == "optimal"
+        if not ok.any():
+            continue
         yv = rows[y].where(ok)
-        style = option_style(i)
+        style = option_style(i + offset)
         fig.add_trace(go.Scatter(
             x=list(rows[x]), y=[None if not math.isfinite(v) else float(v) for v in yv],
-            mode="lines+markers", name=label(name), line=style,
+            mode="lines+markers", name=name, line=style,
             marker={"color": style["color"], "size": 6},
             hovertext=[hover.format(**r) for r in rows.to_dict("records")], hoverinfo="text"))
 
@@ -128,6 +131,8 @@ def ratio_figure(table, x: str = "normalised_span", *, title: str | None = None,
         for i, ((name, n), rows) in enumerate(table[table["option"] != REFERENCE]
                                               .groupby(["option", "pylons"], sort=False)):
             rows = rows.sort_values(x)
+            if not (rows["status"] == "optimal").any():
+                continue
             style = option_style(1 + i)
             fig.add_trace(go.Scatter(x=list(rows[x]), y=list(rows["ratio_to_reference"]
                                                              .where(rows["status"] == "optimal")),
@@ -135,7 +140,7 @@ def ratio_figure(table, x: str = "normalised_span", *, title: str | None = None,
                                      line=style))
     else:
         _lines(fig, table[table["option"] != REFERENCE], x, "ratio_to_reference", forms,
-               "{option}<br>ratio {ratio_to_reference:.4g}<br>{status}")
+               "{option}<br>ratio {ratio_to_reference:.4g}<br>{status}", offset=1)
         _mark_impossible(fig, table, x, [REFERENCE] + forms)
     if not any(table.loc[table["option"] != REFERENCE, "status"] == "optimal"):
         fig.add_annotation(text="no form solved here: only the reference optimum is available",
@@ -188,6 +193,8 @@ def pylon_figure(table, *, title: str | None = None):
     forms = table[table["option"] != REFERENCE]
     for i, ((name, n), rows) in enumerate(forms.groupby(["option", "pylons"], sort=False)):
         rows = rows.sort_values("span_m")
+        if not (rows["status"] == "optimal").any():
+            continue
         fig.add_trace(go.Scatter(x=list(rows["span_m"]),
                                  y=list(rows["volume_m3"].where(rows["status"] == "optimal")),
                                  mode="lines+markers", name=f"{name}, {n} pylon(s)",

@@ -142,7 +142,8 @@ def _add_design(fig, design, *, scale: float, width_by: str, legend: bool, row=N
 def _layout(fig, title: str | None, height: int) -> None:
     fig.update_layout(title=title, height=height, template="simple_white",
                       margin={"l": 60, "r": 20, "t": 60 if title else 30, "b": 50},
-                      legend={"orientation": "h", "y": -0.12, "x": 0},
+                      legend={"orientation": "h", "y": 1.0, "x": 1.0, "xanchor": "right",
+                              "yanchor": "bottom"},
                       hovermode="closest")
 
 
@@ -210,13 +211,14 @@ def options_figure(options: Mapping[str, object], *, width_by: str = "force",
         fig.update_yaxes(scaleanchor=f"x{i}" if i > 1 else "x", scaleratio=1, row=i, col=1,
                          title_text="z [m]")
     fig.update_xaxes(title_text="x [m]", row=rows, col=1)
+    note = ""
     if missing:
-        fig.add_annotation(text=_wrap("Not drawn: " + "; ".join(missing), 120), showarrow=False,
-                           xref="paper", yref="paper", x=0, y=1.0, yanchor="bottom",
-                           xanchor="left", font={"size": 11})
-    _layout(fig, title, max(320, height_per_panel * rows + 100))
+        note = "<br><sup>" + _wrap("Not drawn: " + "; ".join(missing), 140).replace(
+            "<br>", "</sup><br><sup>") + "</sup>"
+    _layout(fig, (title or "") + note if (title or note) else None,
+            max(320, height_per_panel * rows + 100))
     if missing:
-        fig.update_layout(margin={"t": 100})
+        fig.update_layout(margin={"t": 80 + 16 * note.count("<br>")})
     return fig
 
 

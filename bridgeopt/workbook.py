@@ -30,7 +30,7 @@ from .cautions import CAUTION_LINES
 from .errors import BridgeoptError, InputError, SolveError
 
 __all__ = ["setup", "param", "fast_mode", "report_mode", "error_text", "message_html",
-           "cautions_html", "forms_note", "scenario_html", "results_html",
+           "cautions_html", "forms_note", "scenario_html", "results_html", "number",
            "show", "show_cautions", "sweep", "export_button", "RENDERER"]
 
 #: Name of the plotly renderer registered by :func:`setup`.
@@ -180,14 +180,25 @@ def scenario_html(bridge, source: str | os.PathLike | None = None) -> str:
     return f"<p>{html.escape(text)}</p>"
 
 
+def number(value) -> str:
+    """A table cell: numbers to 6 significant figures with thousands separators."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return str(value)
+    return f"{value:,.6g}" if isinstance(value, float) else f"{value:,d}"
+
+
 def results_html(table) -> str:
     """The comparison's headline numbers as a sentence per option."""
+    from .study import REFERENCE
+
     items = []
     for r in table.to_dict("records"):
         if r["status"] == "optimal":
+            what = ("the least volume any structure on this grid can have"
+                    if r["option"] == REFERENCE else
+                    f"{r['ratio_to_reference']:.3g} times the reference optimum")
             items.append(f"{r['option']}: volume {r['volume_m3']:,.5g} m3, weight "
-                         f"{r['weight_N'] / 1e3:,.5g} kN, {r['ratio_to_reference']:.3g} times "
-                         "the reference optimum")
+                         f"{r['weight_N'] / 1e3:,.5g} kN, {what}")
         else:
             items.append(f"{r['option']}: {r['status']}")
     return "<ul>" + "".join(f"<li>{html.escape(i)}</li>" for i in items) + "</ul>"

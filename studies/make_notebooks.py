@@ -180,7 +180,7 @@ NOTEBOOKS = {
         "comparison = study.comparison_table(bridge, results)\n"
         "workbook.show(workbook.scenario_html(bridge, scenario_file))",
         md("## Inputs"),
-        "workbook.show(study.inputs_table(bridge).style.hide(axis='index'))",
+        "workbook.show(study.inputs_table(bridge).style.hide(axis='index').format(workbook.number))",
         md("## Results"),
         "workbook.show(workbook.results_html(comparison))\n"
         "workbook.show(workbook.forms_note(forms))\n"

@@ -69,7 +69,8 @@ def test_options_figure_notes_options_without_a_design(design):
     opts = {study.REFERENCE: study.Option(study.REFERENCE, "optimal", design, ""),
             "suspension": study.Option("suspension", "unavailable", None, "suspension: not here")}
     fig = plots.options_figure(opts)
-    assert any("suspension: not here" in (a.text or "") for a in fig.layout.annotations)
+    assert "suspension: not here" in fig.layout.title.text
+    assert len([t for t in fig.data if t.name == "deck level"]) == 1  # one panel only
     assert any(study.REFERENCE in (a.text or "") for a in fig.layout.annotations)
 
 

@@ -1,0 +1,93 @@
+"""Notebook helpers (bridgeopt.workbook) and the report command's input checks."""
+
+import importlib.util
+import subprocess
+import sys
+from pathlib import Path
+
+import nbformat
+import pytest
+
+pytest.importorskip("plotly")
+pytest.importorskip("ipywidgets")
+
+from bridgeopt import InputError, SolveError, workbook  # noqa: E402
+from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
+from bridgeopt.cli import main  # noqa: E402
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def test_param_reads_typed_environment_overrides(monkeypatch):
+    monkeypatch.delenv("BRIDGEOPT_FAST", raising=False)
+    monkeypatch.setenv("BRIDGEOPT_SPAN", "2400")
+    monkeypatch.setenv("BRIDGEOPT_SPANS", "100, 200,300")
+    monkeypatch.setenv("BRIDGEOPT_PYLONS", "3")
+    assert workbook.param("span", 1800.0) == 2400.0
+    assert workbook.param("spans", [1.0]) == [100.0, 200.0, 300.0]
+    assert workbook.param("pylons", 2) == 3
+    assert workbook.param("divisions", 30, fast=12) == 30
+    monkeypatch.setenv("BRIDGEOPT_FAST", "1")
+    assert workbook.param("divisions", 30, fast=12) == 12
+    monkeypatch.setenv("BRIDGEOPT_PYLONS", "two")
+    with pytest.raises(InputError, match="BRIDGEOPT_PYLONS"):
+        workbook.param("pylons", 2)
+
+
+def test_error_text_is_one_readable_line():
+    text = workbook.error_text(InputError("bridge.span", -5.0, "a finite number > 0 m"))
+    assert "bridge.span" in text and "-5.0" in text and "> 0 m" in text and "\n" not in text
+    text = workbook.error_text(SolveError("span-limit", "elements cannot reach"))
+    assert "span-limit" in text and "cannot reach" in text
+    assert "bridgeopt-error" in workbook.message_html("x < y")
+    assert "x &lt; y" in workbook.message_html("x < y")
+
+
+def test_cautions_html_carries_every_caution():
+    html = workbook.cautions_html()
+    assert all(line in html for line in CAUTION_LINES)
+
+
+def test_setup_registers_an_offline_renderer_without_mathjax_or_cdn():
+    import plotly.graph_objects as go
+    import plotly.io as pio
+
+    workbook.setup()
+    assert pio.renderers.default == f"plotly_mimetype+{workbook.RENDERER}"
+    bundle = pio.renderers[workbook.RENDERER].to_mimebundle(
+        go.Figure(go.Scatter(x=[0, 1], y=[0, 1])).to_plotly_json())
+    assert "Plotly.newPlot" in bundle["text/html"]
+    assert "http" not in bundle["text/html"].split("Plotly.newPlot")[0]
+    assert "mathjax" not in bundle["text/html"].lower().replace("mathjaxconfig", "")
+
+
+def test_committed_notebooks_match_their_generator(tmp_path):
+    spec = importlib.util.spec_from_file_location("make_notebooks",
+                                                  ROOT / "studies" / "make_notebooks.py")
+    gen = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(gen)
+    for name, cells in gen.NOTEBOOKS.items():
+        built = gen.build(name, cells)
+        committed = nbformat.read(ROOT / "studies" / name, as_version=4)
+        assert [c.source for c in committed.cells] == [c.source for c in built.cells], name
+
+
+def test_report_command_refuses_a_missing_notebook(tmp_path, capsys):
+    status = main(["report", str(tmp_path / "nope.ipynb"), "-o", str(tmp_path / "x.html")])
+    assert status == 2
+    err = capsys.readouterr().err
+    assert "NOTEBOOK" in err and "nope.ipynb" in err
+
+
+def test_report_command_refuses_a_bad_param_and_a_missing_directory(tmp_path, capsys):
+    nb = ROOT / "studies" / "explorer.ipynb"
+    assert main(["report", str(nb), "-o", str(tmp_path / "x.html"), "--param", "span"]) == 2
+    assert "--param" in capsys.readouterr().err
+    assert main(["report", str(nb), "-o", str(tmp_path / "no" / "x.html")]) == 2
+    assert "-o" in capsys.readouterr().err
+
+
+def test_report_help_lists_the_command():
+    run = subprocess.run([sys.executable, "-m", "bridgeopt", "--help"], capture_output=True,
+                         text=True, timeout=60)
+    assert "report" in run.stdout
