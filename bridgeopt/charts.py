@@ -143,6 +143,8 @@ def ratio_figure(table, x: str = "normalised_span", *, title: str | None = None,
                "{option}<br>ratio {ratio_to_reference:.4g}<br>{status}", offset=1)
         _mark_impossible(fig, table, x, [REFERENCE] + forms)
     if not any(table.loc[table["option"] != REFERENCE, "status"] == "optimal"):
+        if len(table):
+            fig.update_xaxes(range=[float(table[x].min()), float(table[x].max())])
         fig.add_annotation(text="no form solved here: only the reference optimum is available",
                            showarrow=False, xref="paper", yref="paper", x=0.5, y=0.5)
     _unavailable_note(fig, table)
