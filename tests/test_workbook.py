@@ -91,3 +91,51 @@ def test_report_help_lists_the_command():
     run = subprocess.run([sys.executable, "-m", "bridgeopt", "--help"], capture_output=True,
                          text=True, timeout=60)
     assert "report" in run.stdout
+
+
+@pytest.fixture
+def stand_in_form():
+    """A registered stand-in form: the optimum with half the rise."""
+    import dataclasses
+
+    from bridgeopt import optimize_layout, study
+
+    def low(bridge, options):
+        if options["pylons"] > 3:
+            raise SolveError("infeasible", "stand-in form: too many pylons")
+        return optimize_layout(dataclasses.replace(bridge, rise=bridge.rise / 2).to_problem())
+
+    study.register_form("stand-in", low)
+    yield "stand-in"
+    study.unregister_form("stand-in")
+
+
+def test_explorer_shows_a_registered_form_beside_the_reference(stand_in_form):
+    from bridgeopt import study
+    from bridgeopt.explorer import Explorer
+
+    ex = Explorer(span=1200.0, rise=300.0, depth=100.0, form=stand_in_form, divisions=12)
+    assert "stand-in" in ex.controls["form"].options
+    assert ex.error is None and ex.message.value == ""
+    table = ex.comparison.set_index("option")
+    assert list(table["status"]) == ["optimal", "optimal"]
+    assert table.loc["stand-in", "ratio_to_reference"] >= 1 - 1e-7
+    assert len([t for t in ex.figure.data if t.name == "deck level"]) == 2  # two panels
+    assert list(ex.bar_figure.data[0].x) == [study.REFERENCE, "stand-in"]
+    # the pylon control reaches the form's solver; its failure is a note, not a crash
+    ex.controls["pylons"].value = 4
+    assert ex.error is None and "too many pylons" in ex.message.value
+    assert ex.comparison.set_index("option").loc["stand-in", "status"] == "failed"
+
+
+def test_explorer_caches_solves_on_the_slider_values(stand_in_form):
+    from bridgeopt.explorer import Explorer
+
+    ex = Explorer(span=1200.0, rise=300.0, depth=100.0, form=stand_in_form, divisions=12)
+    first = ex.results["stand-in"]
+    ex.controls["span"].value = 1500.0
+    ex.controls["span"].value = 1200.0
+    assert ex.results["stand-in"] is first  # the same solved object, not a new solve
+    assert all(isinstance(w.continuous_update, bool) and not w.continuous_update
+               for k, w in ex.controls.items() if k in ("span", "rise", "depth", "deck_load",
+                                                       "pylons"))
