@@ -137,6 +137,8 @@ class Explorer:
 
         bridge = self.scenario()
         form, pylons = self.controls["form"].value, int(self.controls["pylons"].value)
+        if (bridge, study.REFERENCE, None) not in self._cache:
+            self.message.value = message_html(f"Solving {bridge.span:,.0f} m ...", "note")
         ref = self._solve(bridge, study.REFERENCE, pylons)
         results = {study.REFERENCE: ref}
         results[form] = self._solve(bridge, form, pylons)
@@ -207,7 +209,7 @@ class Explorer:
         left = w.VBox([c["span"], c["rise"], c["depth"], c["deck_load"]])
         right = w.VBox([c["material"], c["arrangement"], c["form"], c["pylons"]])
         return w.VBox([w.HTML(cautions_html()), w.HBox([left, right]), self.message,
-                       self.summary, self.drawing, w.HBox([self.bars, self.tables])])
+                       self.summary, self.drawing, self.bars, self.tables])
 
     def show(self) -> None:
         """Display the explorer (static figures and tables in report mode)."""
