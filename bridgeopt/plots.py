@@ -141,9 +141,9 @@ def _add_design(fig, design, *, scale: float, width_by: str, legend: bool, row=N
 
 def _layout(fig, title: str | None, height: int) -> None:
     fig.update_layout(title=title, height=height, template="simple_white",
-                      margin={"l": 60, "r": 20, "t": 60 if title else 30, "b": 50},
-                      legend={"orientation": "h", "y": 1.0, "x": 1.0, "xanchor": "right",
-                              "yanchor": "bottom"},
+                      margin={"l": 60, "r": 20, "t": 60 if title else 30, "b": 95},
+                      legend={"orientation": "h", "yref": "container", "y": 0.0,
+                              "yanchor": "bottom", "x": 0.0},
                       hovermode="closest")
 
 
