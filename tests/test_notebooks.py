@@ -56,9 +56,9 @@ def test_study_runs_headlessly(path):
     assert sum("application/vnd.plotly.v1+json" in o.get("data", {}) for o in outputs) >= 2
 
 
-def _appended(path, source):
+def _appended(path, *sources):
     nb = nbformat.read(path, as_version=4)
-    nb.cells.append(nbformat.v4.new_code_cell(source))
+    nb.cells += [nbformat.v4.new_code_cell(s) for s in sources]
     tmp = path.with_name(f".test_{path.name}")
     nbformat.write(nb, tmp)
     return tmp
@@ -78,14 +78,21 @@ print("PROBE" + json.dumps({"before": before, "after": after, "bad": bad, "again
                             "divisions": explorer.divisions}))
 """
 
+# Run as a later cell: the explorer's output area as the front end (nbclient) holds it.
+SHOWN = """
+import json
+print("SHOWN" + json.dumps([o.get("data", {}).get("application/vnd.plotly.v1+json")
+                            for o in explorer.drawing.outputs]))
+"""
+
 
 def test_explorer_sliders_resolve_redraw_and_show_errors_in_a_kernel():
-    tmp = _appended(STUDIES / "explorer.ipynb", PROBE)
+    tmp = _appended(STUDIES / "explorer.ipynb", PROBE, SHOWN)
     try:
         nb = execute_notebook(tmp, report=False, timeout=120, extra_env=FAST)
     finally:
         tmp.unlink()
-    text = "".join(o.get("text", "") for o in nb.cells[-1].outputs if o.output_type == "stream")
+    text = "".join(o.get("text", "") for o in nb.cells[-2].outputs if o.output_type == "stream")
     probe = json.loads(text.split("PROBE", 1)[1])
     before, after, bad, again = probe["before"], probe["after"], probe["bad"], probe["again"]
     assert before["error"] is None and after["error"] is None
@@ -106,3 +113,9 @@ def test_explorer_sliders_resolve_redraw_and_show_errors_in_a_kernel():
     assert again["error"] is None and "bridgeopt-error" not in again["message"]
     assert again["reference_volume"] != after["reference_volume"]
     assert not _errors(nb)
+    # the redrawn figure is what the output area shows: one plotly figure, the new span
+    shown = json.loads("".join(o.get("text", "") for o in nb.cells[-1].outputs
+                               if o.output_type == "stream").split("SHOWN", 1)[1])
+    assert len(shown) == 1 and shown[0] is not None
+    assert shown[0]["layout"]["title"]["text"].startswith(again["title"].split("<br>")[0])
+    assert f"{after['span']:,.0f} m span" in shown[0]["layout"]["title"]["text"]
