@@ -15,7 +15,8 @@ from typing import Any
 from . import plots, study
 from .bridge import ARRANGEMENTS, BridgeScenario
 from .materials import PRESETS
-from .workbook import cautions_html, error_text, message_html, report_mode
+from .workbook import (cautions_html, error_text, message_html, number, report_mode,
+                       scenario_html)
 
 __all__ = ["Explorer"]
 
@@ -218,6 +219,13 @@ class Explorer:
         if not report_mode():
             display(self.widget())
             return
+        try:
+            bridge = self.scenario()
+        except Exception as err:  # the message below says why
+            display(HTML(message_html(error_text(err))))
+        else:
+            display(HTML(scenario_html(bridge)))
+            display(study.inputs_table(bridge).style.hide(axis="index").format(number))
         if self.message.value:
             display(HTML(self.message.value))
         if self.figure is None:

@@ -96,6 +96,10 @@ NOTEBOOKS = {
         "workbook.show(workbook.forms_note(forms))\n"
         "table = workbook.sweep(study.span_sweep, bridge, spans, forms, {'pylons': pylons},\n"
         "                       description='spans')",
+        md("Base scenario (the swept quantity varies from it):"),
+        "workbook.show(workbook.scenario_html(bridge))\n"
+        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
+        "              .format(workbook.number))",
         md("Volume in the normalised form volume / (deck load x span^2 / strength) against "
         "span / (strength / (density g)); shaded: spans where an option found no structure."),
         "workbook.show(charts.span_volume_figure(table))\n"
@@ -128,6 +132,10 @@ NOTEBOOKS = {
         "rises = [span / r for r in span_to_rise]\n"
         "table = workbook.sweep(study.height_sweep, bridge, rises, forms, {'pylons': pylons},\n"
         "                       description='heights')",
+        md("Base scenario (the swept quantity varies from it):"),
+        "workbook.show(workbook.scenario_html(bridge))\n"
+        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
+        "              .format(workbook.number))",
         md("Shaded bands: span-to-height ratios common in practice (from memory, not from a "
         "code) for cable-stayed pylons above the deck and for suspension sags."),
         "workbook.show(charts.height_figure(table))\n"
@@ -159,6 +167,10 @@ NOTEBOOKS = {
         "workbook.show(workbook.forms_note(forms))\n"
         "table = workbook.sweep(study.pylon_sweep, bridge, spans, pylon_counts, forms,\n"
         "                       description='pylons')",
+        md("Base scenario (the swept quantities vary from it):"),
+        "workbook.show(workbook.scenario_html(bridge))\n"
+        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
+        "              .format(workbook.number))",
         "workbook.show(charts.pylon_figure(table))\n"
         "workbook.show(charts.ratio_figure(table, 'span_m', by_pylons=True,\n"
         "                                  x_title='span [m]'))",
