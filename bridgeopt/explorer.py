@@ -221,17 +221,20 @@ class Explorer:
             return
         try:
             bridge = self.scenario()
-        except Exception as err:  # the message below says why
+        except Exception as err:  # shown, never raised from a report
+            bridge = None
             display(HTML(message_html(error_text(err))))
-        else:
+        if bridge is not None:
             display(HTML(scenario_html(bridge)))
-            display(study.inputs_table(bridge).style.hide(axis="index").format(number))
         if self.message.value:
             display(HTML(self.message.value))
-        if self.figure is None:
-            return
-        display(HTML(self.summary.value))
-        display(self.figure)
-        display(self.bar_figure)
-        for obj in self._tables():
-            display(obj)
+        if self.figure is not None:
+            display(HTML(self.summary.value))
+            display(self.figure)
+            display(self.bar_figure)
+        if bridge is not None:
+            display(HTML("<b>Inputs</b>"))
+            display(study.inputs_table(bridge).style.hide(axis="index").format(number))
+        if self.figure is not None:
+            for obj in self._tables():
+                display(obj)

@@ -60,6 +60,8 @@ def test_report_is_one_file_with_inputs_results_and_cautions(report):
     assert "window.PlotlyConfig" in text and len(text) > 3_000_000  # plotly.js inlined
     for line in CAUTION_LINES:
         assert line in text
+    # the scenario and its inputs with units
+    assert "Scenario:" in text and "rise allowed above deck" in text and "kN/m" in text
     if name == "client_report":
         assert "Inputs" in text and "kN/m" in text and "Results" in text
         assert "reference optimum" in text and "m3" in text
