@@ -96,10 +96,6 @@ NOTEBOOKS = {
         "workbook.show(workbook.forms_note(forms))\n"
         "table = workbook.sweep(study.span_sweep, bridge, spans, forms, {'pylons': pylons},\n"
         "                       description='spans')",
-        md("Base scenario (the swept quantity varies from it):"),
-        "workbook.show(workbook.scenario_html(bridge))\n"
-        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
-        "              .format(workbook.number))",
         md("Volume in the normalised form volume / (deck load x span^2 / strength) against "
         "span / (strength / (density g)); shaded: spans where an option found no structure."),
         "workbook.show(charts.span_volume_figure(table))\n"
@@ -107,6 +103,10 @@ NOTEBOOKS = {
         "[-]'))",
         "workbook.show(table.pivot_table(index='span_m', columns='option',\n"
         "                                values='normalised_volume').round(4))",
+        md("## Inputs\n\nBase scenario, at the first span; rise and depth scale with the span, spans swept: see the table above."),
+        "workbook.show(workbook.scenario_html(bridge))\n"
+        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
+        "              .format(workbook.number))",
     ],
     "height_study.ipynb": [
         _opening("Height-limit study",
@@ -132,10 +132,6 @@ NOTEBOOKS = {
         "rises = [span / r for r in span_to_rise]\n"
         "table = workbook.sweep(study.height_sweep, bridge, rises, forms, {'pylons': pylons},\n"
         "                       description='heights')",
-        md("Base scenario (the swept quantity varies from it):"),
-        "workbook.show(workbook.scenario_html(bridge))\n"
-        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
-        "              .format(workbook.number))",
         md("Shaded bands: span-to-height ratios common in practice (from memory, not from a "
         "code) for cable-stayed pylons above the deck and for suspension sags."),
         "workbook.show(charts.height_figure(table))\n"
@@ -143,6 +139,10 @@ NOTEBOOKS = {
         "                                  x_title='span / allowed rise above deck [-]'))",
         "workbook.show(table.pivot_table(index='rise_m', columns='option',\n"
         "                                values='volume_m3').round(1))",
+        md("## Inputs\n\nBase scenario; the allowed rise is swept (see the table above)."),
+        "workbook.show(workbook.scenario_html(bridge))\n"
+        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
+        "              .format(workbook.number))",
     ],
     "pylon_study.ipynb": [
         _opening("Pylon-count study",
@@ -167,15 +167,15 @@ NOTEBOOKS = {
         "workbook.show(workbook.forms_note(forms))\n"
         "table = workbook.sweep(study.pylon_sweep, bridge, spans, pylon_counts, forms,\n"
         "                       description='pylons')",
-        md("Base scenario (the swept quantities vary from it):"),
-        "workbook.show(workbook.scenario_html(bridge))\n"
-        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
-        "              .format(workbook.number))",
         "workbook.show(charts.pylon_figure(table))\n"
         "workbook.show(charts.ratio_figure(table, 'span_m', by_pylons=True,\n"
         "                                  x_title='span [m]'))",
         "workbook.show(table.pivot_table(index=['span_m'], columns=['option', 'pylons'],\n"
         "                                values='volume_m3').round(1))",
+        md("## Inputs\n\nBase scenario, at the first span; rise and depth scale with the span."),
+        "workbook.show(workbook.scenario_html(bridge))\n"
+        "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
+        "              .format(workbook.number))",
     ],
     "client_report.ipynb": [
         _opening("Option study report",
