@@ -213,6 +213,16 @@ NOTEBOOKS = {
 }
 
 
+def _with_export(name: str, cells: list[str]) -> list[str]:
+    """``cells`` ending with the export button (added when the notebook has none)."""
+    if any("export_button" in c for c in cells):
+        return cells
+    stem = Path(name).stem
+    return cells + [md("Export this study as one HTML file (or run `bridgeopt report "
+                       f"studies/{name} -o {stem}.html` in a terminal):"),
+                    f'workbook.export_button("{name}", "{stem}.html")']
+
+
 def build(name: str, cells: list[str]):
     """The notebook ``name`` from its cells (:class:`md` texts are markdown)."""
     nb = new_notebook()
@@ -220,7 +230,7 @@ def build(name: str, cells: list[str]):
                                  "name": "python3"}
     nb.metadata["language_info"] = {"name": "python"}
     code_seen = 0
-    for text in cells:
+    for text in _with_export(name, cells):
         if isinstance(text, md):
             nb.cells.append(new_markdown_cell(text))
             continue

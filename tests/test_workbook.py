@@ -139,3 +139,24 @@ def test_explorer_caches_solves_on_the_slider_values(stand_in_form):
     assert all(isinstance(w.continuous_update, bool) and not w.continuous_update
                for k, w in ex.controls.items() if k in ("span", "rise", "depth", "deck_load",
                                                        "pylons"))
+
+
+def test_export_button_writes_the_report(tmp_path, monkeypatch):
+    monkeypatch.delenv("BRIDGEOPT_REPORT", raising=False)
+    nb = nbformat.v4.new_notebook(cells=[
+        nbformat.v4.new_markdown_cell("# tiny study\n\n" + "\n".join(CAUTION_LINES)),
+        nbformat.v4.new_code_cell("from bridgeopt import workbook\nworkbook.setup()\n"
+                                  "import plotly.graph_objects as go\n"
+                                  "workbook.show(go.Figure(go.Bar(x=['a'], y=[1])))")])
+    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3",
+                                 "language": "python"}
+    path = tmp_path / "tiny.ipynb"
+    nbformat.write(nb, path)
+    box = workbook.export_button(path, tmp_path / "tiny.html")
+    button, note = box.children
+    button.click()
+    assert "Report written" in note.value, note.value
+    text = (tmp_path / "tiny.html").read_text(encoding="utf-8")
+    assert text.count("Plotly.newPlot(") == 1
+    monkeypatch.setenv("BRIDGEOPT_REPORT", "1")
+    assert workbook.export_button(path, tmp_path / "x.html") is None
