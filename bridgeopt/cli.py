@@ -15,6 +15,8 @@ Commands
     Write a solved design as CSV tables, JSON, SVG and DXF drawings.
 ``judge FILE.toml LAYOUT [--members MEMBERS.csv]``
     Size a proposed layout with the same LP and compare it with the reference optimum.
+``report NOTEBOOK.ipynb -o FILE.html [--param NAME=VALUE ...] [--show-code]``
+    Execute a study notebook and write one self-contained HTML report.
 
 Exit status: 0 success; 2 bad input (a key, value or file; also a bad command
 line); 3 the solve failed (:class:`~bridgeopt.errors.SolveError`); 1 an
@@ -524,6 +526,25 @@ def _run_export(args) -> int:
     return EXIT_OK
 
 
+def _run_report(args) -> int:
+    from .report import write_report
+
+    params = {}
+    for item in args.param or ():
+        name, sep, value = item.partition("=")
+        if not sep or not name.strip():
+            raise InputError("--param", item, "NAME=VALUE, e.g. span=2400")
+        params[name.strip()] = value
+    t0 = time.perf_counter()
+    out = write_report(args.notebook, args.output, parameters=params, show_code=args.show_code,
+                       timeout=args.timeout)
+    print(f"bridgeopt {__version__}: report written to {out} "
+          f"({out.stat().st_size / 1e6:.1f} MB, {time.perf_counter() - t0:.1f} s); "
+          "it opens offline in any browser")
+    print(CAUTIONS)
+    return EXIT_OK
+
+
 def _add_export(sub) -> None:
     p = sub.add_parser("export", help="write a solved design as CSV, JSON, SVG and DXF",
                        description="Solve a scenario file (or read the JSON of a solve) and "
@@ -581,8 +602,25 @@ def _add_judge(sub) -> None:
     p.set_defaults(func=_run_judge)
 
 
+def _add_report(sub) -> None:
+    p = sub.add_parser("report", help="execute a study notebook and write an HTML report",
+                       description="Execute a study notebook (studies/*.ipynb) in a fresh "
+                                   "kernel and write one self-contained HTML file (plotly.js "
+                                   "inlined, no network needed to open it).")
+    p.add_argument("notebook", metavar="NOTEBOOK.ipynb", help="study notebook")
+    p.add_argument("-o", "--output", metavar="FILE.html", required=True, help="HTML file to write")
+    p.add_argument("--param", action="append", metavar="NAME=VALUE",
+                   help="override a parameter of the notebook's parameters cell (repeatable; "
+                        "lists comma-separated), e.g. --param span=2400")
+    p.add_argument("--show-code", action="store_true", help="keep the code cells in the report")
+    p.add_argument("--timeout", type=int, default=600, metavar="SECONDS",
+                   help="time limit per notebook cell (default 600)")
+    p.set_defaults(func=_run_report)
+
+
 #: Command registrars, in the order ``--help`` lists them.
-COMMANDS = (_add_solve, _add_demo, _add_check, _add_sweep, _add_export, _add_judge)
+COMMANDS = (_add_solve, _add_demo, _add_check, _add_sweep, _add_export, _add_judge,
+            _add_report)
 
 
 def build_parser() -> argparse.ArgumentParser:

@@ -24,8 +24,21 @@ def test_exactly_two_commands():
     commands = _quick_start_commands()
     assert len(commands) == 2
     assert all("\n" not in c for c in commands)
-    assert "bridgeopt demo" in commands[0]
-    assert "pytest" in commands[1]
+    # the main job: JupyterLab on the workbook with the explorer open
+    assert "cd studies && ../.venv/bin/jupyter lab explorer.ipynb" in commands[0]
+    assert "[notebook]" in commands[0]
+    assert "pytest" in commands[1] and "notebook" in commands[1]
+
+
+def test_quick_start_notebook_exists():
+    target = _quick_start_commands()[0].split("jupyter lab ", 1)[1].split()[0]
+    assert (ROOT / "studies" / target).is_file()
+
+
+def test_using_it_gives_the_headless_report_command():
+    text = (ROOT / "README.md").read_text()
+    section = text.split("## Using it", 1)[1]
+    assert "bridgeopt report studies/explorer.ipynb -o" in section
 
 
 def test_ci_runs_the_readme_test_command():
