@@ -21,6 +21,7 @@ def _bridge(**kw):
 @pytest.fixture
 def registry():
     """Leave the registry as it was after the test."""
+    study.available_forms()          # the package's forms are registered first
     saved = dict(study.FORM_SOLVERS)
     yield study
     study.FORM_SOLVERS.clear()
@@ -151,3 +152,23 @@ def test_inputs_table_states_units():
     t = study.inputs_table(_bridge())
     units = dict(zip(t["input"], t["unit"]))
     assert units["span"] == "m" and units["deck load"] == "kN/m" and units["density"] == "kg/m3"
+
+
+def test_forms_of_the_package_are_offered_and_judged_on_their_own_supports(registry):
+    """A two-pylon cable-stayed form stands on an extra pier: its ratio is taken against the
+    optimum with that pier too, which is the lower bound for it (LP optimum over a ground
+    structure that contains the form's members on the same supports)."""
+    from bridgeopt.forms import CableStayedForm, form_problem
+
+    bridge = _bridge(arrangement="repeating", divisions=16)
+    assert "cable-stayed fan" in study.available_forms()
+    table = study.compare(bridge, ["cable-stayed fan"], {"pylons": 2}).set_index("option")
+    row = table.loc["cable-stayed fan"]
+    assert row["status"] == "optimal", row["message"]
+    spec = CableStayedForm(pattern="fan", pylons=2)
+    with np.errstate(over="ignore"):
+        fair = optimize_layout(form_problem(bridge, spec)).volume
+    assert row["reference_volume_m3"] == pytest.approx(fair, rel=1e-9)
+    assert row["reference_volume_m3"] < table.loc[study.REFERENCE, "volume_m3"]  # the pier helps
+    assert row["ratio_to_reference"] == pytest.approx(row["volume_m3"] / fair, rel=1e-12)
+    assert row["ratio_to_reference"] >= 1 - 1e-7
