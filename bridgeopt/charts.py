@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from .plots import PALETTE, option_style
 from .study import REFERENCE
 
@@ -87,6 +89,41 @@ def _unavailable_note(fig, table) -> None:
                            yanchor="bottom", font={"size": 11})
 
 
+def _own_support_references(fig, table, names) -> None:
+    """Thin dotted lines: the reference optimum on the supports of forms that add their own.
+
+    A form on extra piers (intermediate pylons) or with anchored pylon tops is set
+    against the optimum with those supports (``reference_volume_m3``); drawn here
+    so that no form ever seems to beat "the" least volume.  One line per distinct
+    set of such references.
+    """
+    import plotly.graph_objects as go
+
+    if "reference_volume_m3" not in table:
+        return
+    plain = table[table["option"] == REFERENCE].set_index("span_m")["volume_m3"]
+    drawn: list[tuple] = []
+    for i, name in enumerate(names):
+        rows = table[(table["option"] == name) & (table["status"] == "optimal")]
+        rows = rows.sort_values("normalised_span")
+        if rows.empty or name == REFERENCE:
+            continue
+        ref = rows["reference_volume_m3"].to_numpy(float)
+        same = np.isclose(ref, plain.reindex(rows["span_m"]).to_numpy(float), rtol=1e-9)
+        if same.all():
+            continue
+        key = tuple(np.round(ref, 6))
+        if key in drawn:
+            continue
+        drawn.append(key)
+        scale = (rows["normalised_volume"] / rows["volume_m3"]).to_numpy(float)
+        fig.add_trace(go.Scatter(
+            x=list(rows["normalised_span"]), y=list(ref * scale), mode="lines",
+            name=f"reference optimum on the supports of {name}",
+            line={"color": option_style(0)["color"], "dash": "dot", "width": 1},
+            hoverinfo="skip"))
+
+
 def span_volume_figure(table, *, title: str | None = None):
     """Normalised volume against normalised span, per option (span sweep table).
 
@@ -98,6 +135,7 @@ def span_volume_figure(table, *, title: str | None = None):
     fig = _base(title or "Volume against span (normalised)")
     _lines(fig, table, "normalised_span", "normalised_volume", names,
            "{option}<br>span {span_m:,.0f} m<br>volume {volume_m3:,.4g} m3<br>{status}")
+    _own_support_references(fig, table, names)
     _mark_impossible(fig, table, "normalised_span", names)
     fig.add_vline(x=math.pi, line={"color": PALETTE["deck"], "dash": "dot"})
     fig.add_annotation(x=math.pi, y=0.02, xref="x", yref="paper", text="reach of one "

@@ -341,5 +341,14 @@ def quantities(design: Design):
     return pd.concat([out, pd.DataFrame([total])], ignore_index=True)
 
 
-# The sweeps live in their own module; they are part of this room's interface.
-from .sweeps import height_sweep, pylon_sweep, span_sweep  # noqa: E402
+_SWEEPS = ("span_sweep", "height_sweep", "pylon_sweep")
+
+
+def __getattr__(name: str):
+    """The sweeps live in :mod:`bridgeopt.sweeps` (which builds on this module); they are
+    part of this room's interface, looked up on first use so either module imports first."""
+    if name in _SWEEPS:
+        from . import sweeps
+
+        return getattr(sweeps, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

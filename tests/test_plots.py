@@ -126,3 +126,22 @@ def test_ratio_and_pylon_charts_have_one_line_per_form_and_count():
     assert [t.name for t in fig.data] == [study.REFERENCE, "arch, 1 pylon(s)", "arch, 2 pylon(s)"]
     ratio = charts.ratio_figure(table, "span_m", by_pylons=True)
     assert len(ratio.data) == 2
+
+
+def test_span_chart_draws_the_reference_on_a_forms_own_supports():
+    """A form compared with an optimum on its own supports gets that optimum drawn too
+    (a hand-made table: the chart never solves)."""
+    rows = []
+    for span, ref, own, vol in ((1000.0, 400.0, 300.0, 450.0), (2000.0, 2000.0, 1500.0, 2400.0)):
+        norm = 1.0 / span ** 2   # any normalisation factor per span
+        rows.append({"option": study.REFERENCE, "span_m": span, "status": "optimal",
+                     "volume_m3": ref, "reference_volume_m3": ref, "normalised_span": span / 1e4,
+                     "normalised_volume": ref * norm, "ratio_to_reference": 1.0})
+        for name in ("form a", "form b"):   # two forms on the same own supports: one line
+            rows.append({"option": name, "span_m": span, "status": "optimal", "volume_m3": vol,
+                         "reference_volume_m3": own, "normalised_span": span / 1e4,
+                         "normalised_volume": vol * norm, "ratio_to_reference": vol / own})
+    fig = charts.span_volume_figure(pd.DataFrame(rows))
+    extra = [t for t in fig.data if t.name.startswith("reference optimum on the supports")]
+    assert len(extra) == 1
+    assert list(extra[0].y) == pytest.approx([300.0 / 1000.0 ** 2, 1500.0 / 2000.0 ** 2])

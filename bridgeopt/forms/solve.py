@@ -226,7 +226,7 @@ def _funicular_search(bridge, spec, problem, moves, start: Design) -> Design:
             frame, _ = build_form(bridge, spec, problem, start={key: value, "tower_height": 0.0})
             found[value] = size_frame(frame)
         except (SolveError, InputError):
-            return math.inf
+            return 1e3 * start.volume  # finite, so the bounded search's arithmetic stays clean
         return found[value].volume
 
     minimize_scalar(volume, bounds=(low, high), method="bounded",
