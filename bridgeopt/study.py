@@ -345,10 +345,10 @@ _SWEEPS = ("span_sweep", "height_sweep", "pylon_sweep")
 
 
 def __getattr__(name: str):
-    """The sweeps live in :mod:`bridgeopt.sweeps` (which builds on this module); they are
+    """The trend studies live in :mod:`bridgeopt.trends` (which builds on this module); they are
     part of this room's interface, looked up on first use so either module imports first."""
     if name in _SWEEPS:
-        from . import sweeps
+        from . import trends
 
-        return getattr(sweeps, name)
+        return getattr(trends, name)
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

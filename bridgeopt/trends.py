@@ -1,4 +1,4 @@
-"""Sweeps of the option comparison: against span, allowed rise and pylon count.
+"""Trend studies of the option comparison: against span, allowed rise and pylon count.
 
 Each returns one long :class:`pandas.DataFrame` with the columns of
 :func:`bridgeopt.study.compare` plus the swept quantities, in SI units.  A form
