@@ -14,6 +14,7 @@ from typing import Any
 
 from . import plots, study
 from .bridge import ARRANGEMENTS, BridgeScenario
+from .errors import InputError, SolveError
 from .materials import PRESETS
 from .workbook import (cautions_html, error_text, message_html, number, report_mode,
                        scenario_html)
@@ -43,6 +44,11 @@ class Explorer:
         Pylons per span, passed to the form. [-]
     divisions : int
         Grid divisions across the span (30 is the meeting grid). [-]
+    traffic : str
+        A key of :data:`bridgeopt.study.TRAFFIC`: traffic load cases carried on top of the
+        deck load ("none": the deck load alone).
+    traffic_load : float
+        Traffic load on the loaded part of the deck in each case. [N/m]
     name : str
         Name of the crossing.
 
@@ -62,6 +68,7 @@ class Explorer:
     def __init__(self, *, span: float = 1800.0, rise: float = 360.0, depth: float = 180.0,
                  deck_load: float = 2.0e5, material: str = "steel", arrangement: str = "single",
                  form: str = "suspension", pylons: int = 2, divisions: int = 30,
+                 traffic: str = "none", traffic_load: float = 8.0e4,
                  name: str = "option study") -> None:
         import ipywidgets as w
 
@@ -89,13 +96,18 @@ class Explorer:
             "form": w.Dropdown(options=list(forms) if form in forms else list(forms) + [form],
                                value=form, description="form", style=style, layout=wide),
             "pylons": slider(w.IntSlider, pylons, 1, 4, 1, "pylons per span"),
+            "traffic": w.Dropdown(options=list(study.TRAFFIC), value=traffic,
+                                  description="traffic cases", style=style, layout=wide),
+            "traffic_load": slider(w.FloatSlider, traffic_load / 1e3, 0.0, 1000.0, 10.0,
+                                   "traffic load [kN/m]", ".0f"),
         }
         self.message = w.HTML()
         self.summary = w.HTML()
         self.drawing, self.bars, self.tables = w.Output(), w.Output(), w.Output()
         self.results: dict[str, study.Option] = {}
         self.comparison = None
-        self.figure = self.bar_figure = None
+        self.figure = self.bar_figure = self.cases_figure = None
+        self.cases = None
         self.quantities: dict[str, Any] = {}
         self.error: str | None = None
         self._cache: dict[tuple, study.Option] = {}
@@ -157,14 +169,34 @@ class Explorer:
                            if o.design is not None}
         self.figure = plots.options_figure(results, title=f"{bridge.name}: {bridge.span:,.0f} m "
                                            f"span, {bridge.material.name}")
+        self._traffic(bridge)
         self.bar_figure = plots.ratio_bar(self.comparison)
         self.summary.value = self._summary_html(bridge)
-        for out, objs in ((self.drawing, [self.figure]), (self.bars, [self.bar_figure]),
+        drawings = [self.figure] + ([self.cases_figure] if self.cases_figure else [])
+        for out, objs in ((self.drawing, drawings), (self.bars, [self.bar_figure]),
                           (self.tables, self._tables())):
             with out:
                 clear_output(wait=True)
                 for obj in objs:
                     display(obj)
+
+    def _traffic(self, bridge: BridgeScenario) -> None:
+        """Solve the traffic cases, if any; a failure becomes a note, the rest still shows."""
+        traffic = self.controls["traffic"].value
+        self.cases = self.cases_figure = None
+        if traffic == "none":
+            return
+        load = float(self.controls["traffic_load"].value) * 1e3
+        try:
+            design, single = study.solve_traffic(bridge, traffic, load)
+        except (InputError, SolveError) as err:
+            note = f"traffic cases: {error_text(err)}"
+            self.message.value = message_html(note, "note")
+            return
+        self.cases = (design, single)
+        self.cases_figure = plots.cases_figure(
+            design, title=f"Deck load plus traffic cases ({traffic}, {load / 1e3:,.0f} kN/m): "
+            f"{design.volume:,.5g} m3 on a {study.TRAFFIC_DIVISIONS}-division whole-span grid")
 
     def _summary_html(self, bridge: BridgeScenario) -> str:
         parts = []
@@ -172,6 +204,12 @@ class Explorer:
             if r["status"] == "optimal":
                 parts.append(f"<b>{r['option']}</b>: {r['volume_m3']:,.5g} m3, "
                              f"{r['weight_N'] / 1e3:,.5g} kN, ratio {r['ratio_to_reference']:.3g}")
+        if self.cases is not None:
+            design, single = self.cases
+            counts = ", ".join(f"{n} {c}" for n, c in design.governing_counts().items())
+            parts.append(f"<b>with traffic cases</b>: {design.volume:,.5g} m3, "
+                         f"{design.volume / single.volume:.3g} x the heaviest case alone "
+                         f"(members governed: {counts})")
         return ("<div>" + " &nbsp;|&nbsp; ".join(parts)
                 + f" &nbsp;|&nbsp; normalised span {bridge.normalised_span:.3g}</div>")
 
@@ -200,7 +238,8 @@ class Explorer:
                 "reference_volume": ref.design.volume if ref and ref.design else None,
                 "traces": len(self.figure.data) if self.figure is not None else 0,
                 "title": self.figure.layout.title.text if self.figure is not None else "",
-                "span": float(self.controls["span"].value)}
+                "span": float(self.controls["span"].value),
+                "traffic_volume": self.cases[0].volume if self.cases else None}
 
     def widget(self):
         """The explorer as one ipywidgets box: controls, message, drawing, bars and tables."""
@@ -209,7 +248,8 @@ class Explorer:
         c = self.controls
         left = w.VBox([c["span"], c["rise"], c["depth"], c["deck_load"]])
         right = w.VBox([c["material"], c["arrangement"], c["form"], c["pylons"]])
-        return w.VBox([w.HTML(cautions_html()), w.HBox([left, right]), self.message,
+        traffic = w.HBox([c["traffic"], c["traffic_load"]])
+        return w.VBox([w.HTML(cautions_html()), w.HBox([left, right]), traffic, self.message,
                        self.summary, self.drawing, self.bars, self.tables])
 
     def show(self) -> None:

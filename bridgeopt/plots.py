@@ -22,7 +22,7 @@ from typing import Mapping
 import numpy as np
 
 __all__ = ["PALETTE", "OPTION_COLOURS", "design_figure", "options_figure", "ratio_bar",
-           "option_style"]
+           "cases_figure", "option_style"]
 
 #: Colours of the workbook's drawings (own choice; blue/orange differ in hue and lightness).
 PALETTE = {
@@ -270,4 +270,32 @@ def ratio_bar(table, *, title: str | None = "Volume against the reference optimu
                      range=[0, 1.25 * (top if math.isfinite(top) else 1.0)])
     fig.update_layout(title=title, height=340, template="simple_white", showlegend=False,
                       margin={"l": 60, "r": 20, "t": 50, "b": 90})
+    return fig
+
+
+def cases_figure(design, *, title: str | None = None):
+    """A several-load-case design: members coloured by the case that governs them.
+
+    ``design`` is a :class:`~bridgeopt.multicase.CaseDesign` (straight members,
+    self-weight lumped at their ends); line width follows the member's area.
+    Never solves.
+    """
+    import plotly.graph_objects as go
+
+    fig = go.Figure()
+    area = np.asarray(design.area, dtype=float)
+    top = float(area.max()) if len(area) else 1.0
+    p, q = design.nodes[design.start], design.nodes[design.end]
+    for k, name in enumerate(design.case_names):
+        sel = np.nonzero(design.governing == k)[0]
+        for j, i in enumerate(sel):   # one trace per member: plotly widths are per trace
+            fig.add_trace(go.Scatter(
+                x=[p[i, 0], q[i, 0]], y=[p[i, 1], q[i, 1]], mode="lines",
+                line={"color": option_style(k + 1)["color"],
+                      "width": 0.8 + 6.0 * math.sqrt(area[i] / top)},
+                name=f"governed by {name}", legendgroup=name, showlegend=j == 0,
+                hovertext=f"{name}: area {area[i]:.4g} m2", hoverinfo="text"))
+    fig.update_yaxes(scaleanchor="x", scaleratio=1, title_text="z [m]")
+    fig.update_xaxes(title_text="x [m]")
+    _layout(fig, title or f"Several load cases: {design.volume:,.5g} m3", 420)
     return fig

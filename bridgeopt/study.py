@@ -37,7 +37,7 @@ from .errors import InputError, SolveError
 from .layout import optimize_layout
 from .materials import GRAVITY
 
-__all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
+__all__ = ["TRAFFIC", "TRAFFIC_DIVISIONS", "solve_traffic", "REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
            "unregister_form", "available_forms", "solve_reference", "solve_option",
            "solve_options", "compare", "span_sweep", "height_sweep", "pylon_sweep",
            "quantities", "STATUSES", "comparison_table", "inputs_table",
@@ -339,6 +339,58 @@ def quantities(design: Design):
              "length_m": out["length_m"].sum(), "volume_m3": out["volume_m3"].sum(),
              "weight_kN": out["weight_kN"].sum(), "max_force_MN": out["max_force_MN"].max()}
     return pd.concat([out, pd.DataFrame([total])], ignore_index=True)
+
+
+#: Traffic patterns the workbook offers on top of the deck load (each a set of load cases).
+TRAFFIC = {
+    "none": (),
+    "full and half span": ({"name": "full", "pattern": "full"},
+                           {"name": "left half", "pattern": "half", "side": "left"}),
+    "full, half and central": ({"name": "full", "pattern": "full"},
+                               {"name": "left half", "pattern": "half", "side": "left"},
+                               {"name": "central", "pattern": "central"}),
+}
+#: Grid of the several-load-case study in the workbook (whole-span model, kept coarse so
+#: that a slider change stays interactive).
+TRAFFIC_DIVISIONS = 16
+
+
+@lru_cache(maxsize=64)
+def solve_traffic(bridge: BridgeScenario, traffic: str, intensity: float):
+    """The reference optimum that carries the deck load plus each traffic case of ``traffic``.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+    traffic : str
+        A key of :data:`TRAFFIC` other than ``"none"``.
+    intensity : float
+        Traffic load on the loaded part of the deck, per case. [N/m]
+
+    Returns
+    -------
+    (CaseDesign, Design)
+        The several-case design (whole-span model, members sized over all cases,
+        self-weight lumped at member ends, :data:`TRAFFIC_DIVISIONS` divisions)
+        and the optimum for its heaviest case alone.
+
+    Raises
+    ------
+    InputError, SolveError
+    """
+    from .multicase import single_case_reference
+    from .scenario import Scenario, parse_scenario, solve_scenario
+
+    if traffic not in TRAFFIC or not TRAFFIC[traffic]:
+        raise InputError("traffic", traffic, "one of " + ", ".join(
+            repr(k) for k in TRAFFIC if TRAFFIC[k]))
+    data = Scenario(name=bridge.name, bridge=bridge).to_dict()
+    data["bridge"]["divisions"] = min(bridge.divisions, TRAFFIC_DIVISIONS)
+    data["load_case"] = [{**case, "intensity": float(intensity)} for case in TRAFFIC[traffic]]
+    scenario = parse_scenario(data)
+    design = _quiet_solve(solve_scenario, scenario)
+    _, single = single_case_reference(scenario.study)
+    return design, single
 
 
 _SWEEPS = ("span_sweep", "height_sweep", "pylon_sweep")

@@ -160,3 +160,27 @@ def test_export_button_writes_the_report(tmp_path, monkeypatch):
     assert text.count("Plotly.newPlot(") == 1
     monkeypatch.setenv("BRIDGEOPT_REPORT", "1")
     assert workbook.export_button(path, tmp_path / "x.html") is None
+
+
+def test_explorer_traffic_cases_are_solved_drawn_and_summarised():
+    """Traffic cases on top of the deck load: the several-case optimum must carry the
+    heaviest case too, so (weightless, same grid) it is at least that case's own optimum
+    (LP lower bound, Hemp 1973 / common practice); a change of traffic load re-solves."""
+    from bridgeopt import study
+    from bridgeopt.explorer import Explorer
+
+    ex = Explorer(span=600.0, rise=150.0, depth=0.0, material="weightless-steel",
+                  form=study.REFERENCE, divisions=12, traffic="full and half span",
+                  traffic_load=5.0e4)
+    assert ex.error is None
+    design, single = ex.cases
+    assert design.volume >= single.volume * (1 - 1e-6)
+    assert sum(design.governing_counts().values()) == len(design.start)
+    assert "with traffic cases" in ex.summary.value
+    assert ex.cases_figure is not None and len(ex.cases_figure.data) == len(design.start)
+    before = ex.state()["traffic_volume"]
+    ex.controls["traffic_load"].value = 150.0
+    assert ex.state()["traffic_volume"] > before          # more traffic, more material
+    ex.controls["traffic"].value = "none"
+    assert ex.cases is None and ex.state()["traffic_volume"] is None
+    assert "with traffic cases" not in ex.summary.value
