@@ -259,25 +259,8 @@ def _solve_and_report(scenario: Scenario, args, t0: float) -> int:
     out = _check_json_target(args.json)
     if args.full_ground_structure:
         scenario = scenario.with_solve(member_adding=False)
-    if args.geometry_optimization:
-        scenario = scenario.with_solve(geometry_optimization=True)
-    # exp(k h) overflows for members far beyond the self-weight reach; their costs are
-    # infinite and the solver drops them, so numpy's overflow warning is only noise here.
-    form = None
-    with np.errstate(over="ignore"):
-        if scenario.form is not None and scenario.form.type != "reference":
-            # a form's free dimensions are always optimized; [solve] geometry_optimization
-            # also rationalises the reference it is compared with
-            reference = None
-            if scenario.solve.geometry_optimization:
-                reference = optimize_geometry(optimize_layout(
-                    form_problem(scenario.bridge, scenario.form),
-                    member_adding=scenario.solve.member_adding, batch=scenario.solve.batch))
-            form = solve_form(scenario.bridge, scenario.form, reference=reference,
-                              member_adding=scenario.solve.member_adding)
-            design = form.design
-        else:
-            design = solve_scenario(scenario)
+    scenario, design, form = _solve_design(scenario,
+                                           geometry_optimization=args.geometry_optimization)
     wall = time.perf_counter() - t0
     if scenario.study is not None:
         return _report_cases(scenario, design, out, wall)
@@ -480,11 +463,15 @@ def _add_sweep(sub) -> None:
 
 
 def _solve_design(scenario: Scenario, *, geometry_optimization: bool = False):
-    """(design, form or None) of a scenario, solved as ``bridgeopt solve`` solves it."""
+    """(scenario, design, form or None): a scenario solved as ``bridgeopt solve`` solves it."""
     if geometry_optimization:
         scenario = scenario.with_solve(geometry_optimization=True)
+    # exp(k h) overflows for members far beyond the self-weight reach; their costs are
+    # infinite and the solver drops them, so numpy's overflow warning is only noise here.
     with np.errstate(over="ignore"):
         if scenario.form is not None and scenario.form.type != "reference":
+            # a form's free dimensions are always optimized; [solve] geometry_optimization
+            # also rationalises the reference it is compared with
             reference = None
             if scenario.solve.geometry_optimization:
                 reference = optimize_geometry(optimize_layout(
