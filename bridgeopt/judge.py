@@ -224,7 +224,7 @@ class Judgement:
                  f"  excess               {self.volume - self.reference_volume:.6g} m3"]
         rows = self.excess.head(top)
         if len(rows) and self.volume > self.reference_volume * (1 + 1e-9):
-            lines.append(f"  members carrying most of the excess (excess = volume less the work "
+            lines.append("  members carrying most of the excess (excess = volume less the work "
                          "of the member's forces in the optimum's virtual displacements):")
             width = max(len(f"{r['start']} - {r['end']}") for _, r in rows.iterrows())
             for _, r in rows.iterrows():
