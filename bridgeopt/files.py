@@ -1,4 +1,4 @@
-"""Reading TOML files and writing files atomically, with errors that name the file.
+"""Reading TOML and JSON files and writing files atomically, with errors that name the file.
 
 Small helpers shared by scenario files, sweep files, JSON output and the sweep's
 result tables.
@@ -6,6 +6,7 @@ result tables.
 
 from __future__ import annotations
 
+import json
 import os
 import tempfile
 import tomllib
@@ -14,7 +15,7 @@ from typing import Callable
 
 from .errors import InputError
 
-__all__ = ["read_toml", "atomic_write"]
+__all__ = ["read_toml", "read_json", "atomic_write"]
 
 
 def read_toml(path: str | os.PathLike, what: str) -> dict:
@@ -41,6 +42,23 @@ def read_toml(path: str | os.PathLike, what: str) -> dict:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as err:
         raise InputError("file", str(path), f"a TOML document; {err}") from None
+
+
+def read_json(path: str | os.PathLike, what: str):
+    """The JSON document at ``path``; ``what`` names it in errors (``"design JSON file"``).
+
+    Raises
+    ------
+    InputError
+        With the field ``"file"``: the file is missing, unreadable or not valid JSON.
+    """
+    path = Path(path)
+    try:
+        return json.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise InputError("file", str(path), f"an existing {what}") from None
+    except (OSError, UnicodeDecodeError, json.JSONDecodeError) as err:
+        raise InputError("file", str(path), f"a readable JSON file ({err})") from None
 
 
 def atomic_write(path: str | os.PathLike, write: Callable[[str], None]) -> Path:

@@ -19,7 +19,6 @@
 
 from __future__ import annotations
 
-import json
 import math
 from pathlib import Path
 from typing import Iterable
@@ -30,6 +29,7 @@ from .cautions import CAUTION_LINES
 from .design import Design, Members
 from .drawing import write_dxf, write_svg
 from .errors import InputError
+from .files import read_json
 from .export import design_to_dict, write_json
 
 __all__ = ["FORMATS", "export_design", "members_table", "nodes_table", "design_from_dict",
@@ -183,11 +183,4 @@ def design_from_dict(data: dict) -> Design:
 
 def read_design_json(path: str | Path) -> Design:
     """:func:`design_from_dict` of the JSON file at ``path``."""
-    path = Path(path)
-    try:
-        data = json.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise InputError("file", str(path), "an existing design JSON file") from None
-    except (OSError, UnicodeDecodeError, json.JSONDecodeError) as err:
-        raise InputError("file", str(path), f"a readable JSON file ({err})") from None
-    return design_from_dict(data)
+    return design_from_dict(read_json(path, "design JSON file"))

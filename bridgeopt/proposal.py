@@ -21,7 +21,6 @@ Node ids are whole numbers or text; every member end must be a listed id.
 
 from __future__ import annotations
 
-import json
 import math
 from dataclasses import dataclass
 from pathlib import Path
@@ -29,6 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import InputError
+from .files import read_json
 
 __all__ = ["Proposal", "read_proposal", "proposal_from_dict", "SENSES"]
 
@@ -207,13 +207,7 @@ def read_proposal(path: str | Path, members: str | Path | None = None) -> Propos
     """
     path = Path(path)
     if path.suffix.lower() == ".json":
-        try:
-            data = json.loads(path.read_text(encoding="utf-8"))
-        except FileNotFoundError:
-            raise InputError("file", str(path), "an existing layout JSON file") from None
-        except (OSError, UnicodeDecodeError, json.JSONDecodeError) as err:
-            raise InputError("file", str(path), f"a readable JSON file ({err})") from None
-        return proposal_from_dict(data, source=str(path))
+        return proposal_from_dict(read_json(path, "layout JSON file"), source=str(path))
     if path.is_dir():
         path = path / "nodes.csv"
     members_path = Path(members) if members is not None else path.parent / "members.csv"
