@@ -23,7 +23,7 @@ import sys
 CASE = r"""
 import json, sys, time
 from bridgeopt import BridgeScenario, PRESETS, optimize_layout
-from bridgeopt.geometry import optimize_geometry
+from bridgeopt.geometry.optimize import optimize_geometry
 n = int(sys.argv[1])
 sc = BridgeScenario(span=1000.0, rise=500.0, depth=0.0, deck_load=2e5,
                     material=PRESETS["steel"], divisions=n)

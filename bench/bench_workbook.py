@@ -23,7 +23,8 @@ import time
 
 import plotly.io as pio
 
-from bridgeopt import PRESETS, BridgeScenario, plots, study
+from bridgeopt import PRESETS, BridgeScenario, study
+from bridgeopt.workbook import plots
 
 
 _CACHE: dict = {}

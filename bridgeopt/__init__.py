@@ -9,20 +9,22 @@ fatigue, deflection and construction stages are not checked.  Defer to local
 codes and licensed engineers.
 """
 
-from .bridge import ARRANGEMENTS, BridgeScenario
-from .cautions import CAUTIONS
-from .design import Design, Members
-from .errors import BridgeoptError, InputError, SolveError
-from .forms import (ArchForm, CableStayedForm, FormResult, ReferenceForm, SuspensionForm,
+__version__ = "0.1.0"  # first, so that modules reading it import in any order
+
+from bridgeopt.model.bridge import ARRANGEMENTS, BridgeScenario
+from bridgeopt.cautions import CAUTIONS
+from bridgeopt.solver.design import Design, Members
+from bridgeopt.errors import BridgeoptError, InputError, SolveError
+from bridgeopt.forms import (ArchForm, CableStayedForm, FormResult, ReferenceForm, SuspensionForm,
                     parse_form, solve_form)
-from .frame import Frame, size_frame
-from .geometry import NodeMoves, optimize_geometry
-from .layout import optimize_layout
-from .loadcases import CaseStudy, LoadCase, UnitCosts, traffic_load
-from .multicase import CaseDesign, optimize_cases
-from .crossing import full_span_problem
-from .materials import GRAVITY, PRESETS, Material, material_from_name
-from .problem import Domain, LineLoad, PointLoad, Problem, Support
+from bridgeopt.solver.frame import Frame, size_frame
+from bridgeopt.geometry import NodeMoves, optimize_geometry
+from bridgeopt.solver.layout import optimize_layout
+from bridgeopt.model.loads import CaseStudy, LoadCase, UnitCosts, traffic_load
+from bridgeopt.solver.multicase import CaseDesign, optimize_cases
+from bridgeopt.model.crossing import full_span_problem
+from bridgeopt.model.materials import GRAVITY, PRESETS, Material, material_from_name
+from bridgeopt.model.problem import Domain, LineLoad, PointLoad, Problem, Support
 
 __all__ = [
     "ARRANGEMENTS", "BridgeScenario", "CAUTIONS", "Design", "Members", "BridgeoptError",
@@ -34,4 +36,3 @@ __all__ = [
     "full_span_problem",
 ]
 
-__version__ = "0.1.0"

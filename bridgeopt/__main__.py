@@ -1,7 +1,7 @@
-"""``python -m bridgeopt``: the command-line interface (see :mod:`bridgeopt.cli`)."""
+"""``python -m bridgeopt``: the command-line interface (see :mod:`bridgeopt.cli.commands`)."""
 
 import sys
 
-from .cli import main
+from bridgeopt.cli.commands import main
 
 sys.exit(main())

@@ -1,7 +1,7 @@
 """Write the study notebooks of this folder (without outputs).
 
-The notebooks are thin: every cell calls bridgeopt.workbook, study, plots,
-charts or explorer.  Edit the cells here and run
+The notebooks are thin: every cell calls bridgeopt.study and bridgeopt.workbook (notebook, plots,
+charts, explorer).  Edit the cells here and run
 
     .venv/bin/python studies/make_notebooks.py
 
@@ -31,12 +31,14 @@ def _opening(title: str, answers: str) -> md:
     return md(f"# {title}\n\n**What it answers:** {answers}\n\n**Cautions**\n\n{cautions}\n")
 
 
-SETUP = ("from bridgeopt import charts, plots, study, workbook\n"
+SETUP = ("from bridgeopt import study\n"
+         "from bridgeopt.workbook import charts, plots\n"
+         "from bridgeopt.workbook import notebook as workbook\n"
          "\n"
          "workbook.setup()")
 
 COMMON_PARAMETERS = (
-    "from bridgeopt import workbook\n"
+    "from bridgeopt.workbook import notebook as workbook\n"
     "\n"
     "# Defaults; each can be overridden by an environment variable BRIDGEOPT_<NAME>\n"
     "# (bridgeopt report sets them). BRIDGEOPT_FAST=1 selects the small variant used by tests.\n"
@@ -58,7 +60,7 @@ NOTEBOOKS = {
           'pylons = workbook.param("pylons", 2)\n'
           'divisions = workbook.param("divisions", 30, fast=12)  # 30 = the meeting grid\n'
           'name = workbook.param("name", "Quillmarsh Sound crossing (fictional)")',
-        SETUP + "\nfrom bridgeopt.explorer import Explorer",
+        SETUP + "\nfrom bridgeopt.workbook.explorer import Explorer",
         md("Move a control: the reference optimum (the least material any structure on this "
         "grid can use) and the chosen form are re-solved and redrawn at one scale. Line "
         "width follows the member force; blue is tension, orange is compression."),

@@ -1,6 +1,6 @@
 """Independent checks of a solved :class:`bridgeopt.Design`.
 
-Nothing here calls ``bridgeopt.design.equilibrium_residual`` or reads
+Nothing here calls ``bridgeopt.solver.design.equilibrium_residual`` or reads
 ``Design.equilibrium_error``: the nodal balance is recomputed from the member end
 forces, the applied loads and the reactions with ``numpy.add.at``.
 

@@ -12,9 +12,9 @@ import pytest
 
 from bridgeopt import PRESETS, optimize_layout
 from bridgeopt.cautions import CAUTION_LINES, CAUTIONS
-from bridgeopt.cli import main
-from bridgeopt.materials import GRAVITY
-from bridgeopt.scenario import load_scenario
+from bridgeopt.cli.commands import main
+from bridgeopt.model.materials import GRAVITY
+from bridgeopt.files.scenario import load_scenario
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "studies" / "scenarios" / "demo.toml"

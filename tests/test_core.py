@@ -8,7 +8,7 @@ import pytest
 
 from bridgeopt import (GRAVITY, PRESETS, BridgeScenario, Domain, InputError, LineLoad, Material,
                        PointLoad, Problem, SolveError, Support, optimize_layout)
-from bridgeopt.ground import build_grid, candidate_pairs
+from bridgeopt.solver.ground import build_grid, candidate_pairs
 
 STEEL = PRESETS["steel"]
 
@@ -134,7 +134,7 @@ def test_material_rejects_bad_strength():
 
 def test_line_load_is_lumped_with_its_resultant():
     """Lumping with linear shape functions keeps the resultant (statics)."""
-    from bridgeopt.layout import nodal_loads
+    from bridgeopt.solver.layout import nodal_loads
     problem = Problem(domain=Domain.rectangle((0.0, 10.0), (0.0, 2.0)), spacing=1.0,
                       material=STEEL, supports=(Support((0.0, 0.0)),),
                       line_loads=(LineLoad((0.0, 0.0), (10.0, 0.0), 3.0),))

@@ -15,11 +15,11 @@ from hypothesis import strategies as st
 
 from bridgeopt import BridgeScenario, Design, InputError, Material, PRESETS, SolveError
 from bridgeopt.cautions import CAUTIONS
-from bridgeopt.cli import main
+from bridgeopt.cli.commands import main
 from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, STUDY_FORMS, ArchForm, CableStayedForm,
                              FormResult, ReferenceForm, SuspensionForm, build_form, form_keys,
                              form_problem, parse_form, solve_form)
-from bridgeopt.scenario import parse_scenario
+from bridgeopt.files.scenario import parse_scenario
 from helpers import assert_equilibrium
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -11,11 +11,11 @@ import numpy as np
 import pytest
 
 from bridgeopt import Domain, InputError, LineLoad, Material, PointLoad, Problem, Support
-from bridgeopt.frame import Frame, _lp_data, frame_from_design, size_frame
-from bridgeopt.geometry import NodeMoves, default_moves, optimize_geometry
-from bridgeopt.lp import solve_lp
-from bridgeopt.sensitivity import volume_gradient
-from bridgeopt.topology import simplify
+from bridgeopt.solver.frame import Frame, _lp_data, frame_from_design, size_frame
+from bridgeopt.geometry.optimize import NodeMoves, default_moves, optimize_geometry
+from bridgeopt.solver.lp import solve_lp
+from bridgeopt.geometry.sensitivity import volume_gradient
+from bridgeopt.geometry.topology import simplify
 from helpers import assert_equilibrium
 
 STEEL = Material("steel-like", 355e6, 355e6, 7850.0)

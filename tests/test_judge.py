@@ -24,10 +24,10 @@ import numpy as np
 import pytest
 
 from bridgeopt import InputError, SolveError, optimize_layout
-from bridgeopt.judge import judge_problem, judge_proposal, unbalanced_nodes
-from bridgeopt.outputs import export_design
-from bridgeopt.proposal import proposal_from_dict, read_proposal
-from bridgeopt.scenario import parse_scenario
+from bridgeopt.study.judge import judge_problem, judge_proposal, unbalanced_nodes
+from bridgeopt.files.export import export_design
+from bridgeopt.files.proposal import proposal_from_dict, read_proposal
+from bridgeopt.files.scenario import parse_scenario
 
 BRIDGE = {"name": "Sallow Ford", "bridge": {"span": 400.0, "rise": 100.0, "depth": 40.0,
                                             "deck_load": 1.0e5, "divisions": 10},
@@ -175,7 +175,7 @@ def test_cli_judge(tmp_path, bridge_reference):
 def test_the_bundled_example_proposal():
     from pathlib import Path
 
-    from bridgeopt.scenario import load_scenario
+    from bridgeopt.files.scenario import load_scenario
 
     root = Path(__file__).resolve().parents[1]
     scenario = load_scenario(root / "studies" / "scenarios" / "form_cable_stayed.toml")

@@ -16,12 +16,12 @@ import pytest
 
 from bridgeopt import (GRAVITY, PRESETS, BridgeScenario, Domain, InputError, Material,
                        PointLoad, Problem, SolveError, Support, optimize_layout)
-from bridgeopt.cli import main
-from bridgeopt.crossing import full_span_problem
-from bridgeopt.elements import centreline
-from bridgeopt.loadcases import CaseStudy, LoadCase, UnitCosts, traffic_load
-from bridgeopt.multicase import optimize_cases
-from bridgeopt.scenario import load_scenario, parse_scenario, solve_scenario
+from bridgeopt.cli.commands import main
+from bridgeopt.model.crossing import full_span_problem
+from bridgeopt.solver.elements import centreline
+from bridgeopt.model.loads import CaseStudy, LoadCase, UnitCosts, traffic_load
+from bridgeopt.solver.multicase import optimize_cases
+from bridgeopt.files.scenario import load_scenario, parse_scenario, solve_scenario
 
 from pathlib import Path
 
@@ -259,7 +259,7 @@ def test_no_curved_member_enters_the_channel():
     m = d.members
     assert_clear(sc.problem, d.nodes[m.start], d.nodes[m.end], m.sense)
     # the check bites: without it (chords only), a cable sags into the channel
-    from bridgeopt import layout
+    from bridgeopt.solver import layout
     grid, f, data, sol, refs = layout._solve(sc.problem, member_adding=True, batch=None,
                                              coarse_start=True)
     raw = layout.design_from_lp(sc.problem, grid, data, sol, f, *refs)
@@ -421,7 +421,7 @@ def test_cli_reports_cases_cost_and_volume(tmp_path, capsys):
 
 
 def test_single_case_reference_is_the_heaviest_case_alone_and_not_heavier():
-    from bridgeopt.multicase import single_case_reference
+    from bridgeopt.solver.multicase import single_case_reference
 
     p = full_span_problem(bridge())
     study = CaseStudy(p, (traffic("half"), traffic("full")))

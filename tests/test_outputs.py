@@ -19,10 +19,10 @@ import pytest
 
 from bridgeopt import InputError
 from bridgeopt.cautions import CAUTION_LINES, CAUTIONS
-from bridgeopt.drawing import NOTES_LAYER, layer_name
+from bridgeopt.files.drawing import NOTES_LAYER, layer_name
 from bridgeopt.forms import solve_form
-from bridgeopt.outputs import design_from_dict, export_design, read_design_json
-from bridgeopt.scenario import parse_scenario
+from bridgeopt.files.export import design_from_dict, export_design, read_design_json
+from bridgeopt.files.scenario import parse_scenario
 
 SCENARIO = {
     "name": "Orrin Gap suspension option",   # a fictional crossing

@@ -1,4 +1,4 @@
-"""Figures from designs and study tables (bridgeopt.plots, bridgeopt.charts): no solving inside."""
+"""Figures from designs and study tables (bridgeopt.workbook.plots, bridgeopt.workbook.charts): no solving inside."""
 
 import math
 
@@ -8,7 +8,9 @@ import pytest
 
 pytest.importorskip("plotly")
 
-from bridgeopt import PRESETS, BridgeScenario, charts, plots, study  # noqa: E402
+from bridgeopt import PRESETS, BridgeScenario, study  # noqa: E402
+from bridgeopt.workbook import charts
+from bridgeopt.workbook import plots
 
 
 @pytest.fixture(scope="module")

@@ -20,7 +20,7 @@ pytest.importorskip("nbclient")
 pytest.importorskip("plotly")
 
 from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
-from bridgeopt.report import remote_references  # noqa: E402
+from bridgeopt.workbook.report import remote_references  # noqa: E402
 
 STUDIES = Path(__file__).resolve().parents[1] / "studies"
 

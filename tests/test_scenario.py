@@ -11,9 +11,9 @@ import pytest
 
 from bridgeopt import PRESETS, BridgeScenario, InputError, Material, optimize_layout
 from bridgeopt.cautions import CAUTION_LINES
-from bridgeopt.export import design_to_dict, to_json
-from bridgeopt.materials import GRAVITY
-from bridgeopt.scenario import (KEYS, Scenario, SolveOptions, load_scenario, parse_scenario,
+from bridgeopt.files.design_json import design_to_dict, to_json
+from bridgeopt.model.materials import GRAVITY
+from bridgeopt.files.scenario import (KEYS, Scenario, SolveOptions, load_scenario, parse_scenario,
                                 solve_scenario)
 
 ROOT = Path(__file__).resolve().parents[1]

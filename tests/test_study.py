@@ -1,4 +1,4 @@
-"""Option studies: the form registry, comparisons, sweeps and quantities (bridgeopt.study)."""
+"""Option studies: the form registry, comparisons, sweeps and quantities (bridgeopt.study.options)."""
 
 import dataclasses
 import math

@@ -23,7 +23,7 @@ import pytest
 
 from bridgeopt import InputError, optimize_layout
 from bridgeopt.cautions import CAUTION_LINES
-from bridgeopt.scenario import parse_scenario
+from bridgeopt.files.scenario import parse_scenario
 from bridgeopt.sweep import Journal, expand_sweep, load_sweep, run_sweep
 
 BRIDGE = {"span": [400.0, 600.0], "rise": 120.0, "depth": 40.0, "deck_load": 1.0e5,
@@ -328,7 +328,7 @@ def test_cli_scheduler_option(finished, tmp_path, capsys):
         import distributed
     else:
         distributed = pytest.importorskip("distributed")
-    from bridgeopt.cli import main
+    from bridgeopt.cli.commands import main
 
     path = tmp_path / "options.toml"
     path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = 8")

@@ -1,4 +1,4 @@
-"""Notebook helpers (bridgeopt.workbook) and the report command's input checks."""
+"""Notebook helpers (bridgeopt.workbook.notebook) and the report command's input checks."""
 
 import importlib.util
 import subprocess
@@ -11,9 +11,10 @@ import pytest
 pytest.importorskip("plotly")
 pytest.importorskip("ipywidgets")
 
-from bridgeopt import InputError, SolveError, workbook  # noqa: E402
+from bridgeopt import InputError, SolveError  # noqa: E402
+from bridgeopt.workbook import notebook as workbook
 from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
-from bridgeopt.cli import main  # noqa: E402
+from bridgeopt.cli.commands import main  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -112,7 +113,7 @@ def stand_in_form():
 
 def test_explorer_shows_a_registered_form_beside_the_reference(stand_in_form):
     from bridgeopt import study
-    from bridgeopt.explorer import Explorer
+    from bridgeopt.workbook.explorer import Explorer
 
     ex = Explorer(span=1200.0, rise=300.0, depth=100.0, form=stand_in_form, divisions=12)
     assert "stand-in" in ex.controls["form"].options
@@ -129,7 +130,7 @@ def test_explorer_shows_a_registered_form_beside_the_reference(stand_in_form):
 
 
 def test_explorer_caches_solves_on_the_slider_values(stand_in_form):
-    from bridgeopt.explorer import Explorer
+    from bridgeopt.workbook.explorer import Explorer
 
     ex = Explorer(span=1200.0, rise=300.0, depth=100.0, form=stand_in_form, divisions=12)
     first = ex.results["stand-in"]
@@ -145,7 +146,7 @@ def test_export_button_writes_the_report(tmp_path, monkeypatch):
     monkeypatch.delenv("BRIDGEOPT_REPORT", raising=False)
     nb = nbformat.v4.new_notebook(cells=[
         nbformat.v4.new_markdown_cell("# tiny study\n\n" + "\n".join(CAUTION_LINES)),
-        nbformat.v4.new_code_cell("from bridgeopt import workbook\nworkbook.setup()\n"
+        nbformat.v4.new_code_cell("from bridgeopt.workbook import notebook as workbook\nworkbook.setup()\n"
                                   "import plotly.graph_objects as go\n"
                                   "workbook.show(go.Figure(go.Bar(x=['a'], y=[1])))")])
     nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3",
@@ -167,7 +168,7 @@ def test_explorer_traffic_cases_are_solved_drawn_and_summarised():
     heaviest case too, so (weightless, same grid) it is at least that case's own optimum
     (LP lower bound, Hemp 1973 / common practice); a change of traffic load re-solves."""
     from bridgeopt import study
-    from bridgeopt.explorer import Explorer
+    from bridgeopt.workbook.explorer import Explorer
 
     ex = Explorer(span=600.0, rise=150.0, depth=0.0, material="weightless-steel",
                   form=study.REFERENCE, divisions=12, traffic="full and half span",

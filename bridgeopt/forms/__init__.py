@@ -9,13 +9,13 @@ improved by geometry optimization within the form's rules.  See
 
 from typing import Mapping
 
-from ..bridge import BridgeScenario
-from ..design import Design
-from ..errors import InputError
-from .specs import (FORM_TYPES, ArchForm, CableStayedForm, FormSpec, ReferenceForm,
+from bridgeopt.model.bridge import BridgeScenario
+from bridgeopt.solver.design import Design
+from bridgeopt.errors import InputError
+from bridgeopt.forms.specs import (FORM_TYPES, ArchForm, CableStayedForm, FormSpec, ReferenceForm,
                     SuspensionForm, form_keys, parse_form)
-from .build import build_form, form_problem
-from .solve import GROUPS, FormResult, group_quantities, solve_form
+from bridgeopt.forms.build import build_form, form_problem
+from bridgeopt.forms.solve import GROUPS, FormResult, group_quantities, solve_form
 
 __all__ = ["FORM_TYPES", "ArchForm", "CableStayedForm", "FormSpec", "ReferenceForm",
            "SuspensionForm", "form_keys", "parse_form", "GROUPS", "FormResult", "build_form",

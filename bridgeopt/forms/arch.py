@@ -14,8 +14,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from .builder import FrameBuilder, deck_level
-from .suspension import parabola
+from bridgeopt.forms.builder import FrameBuilder, deck_level
+from bridgeopt.forms.suspension import parabola
 
 __all__ = ["arch_frame"]
 

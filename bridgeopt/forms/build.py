@@ -1,7 +1,7 @@
 """Build a bridge form: its problem (with the supports it needs) and its starting frame.
 
 :func:`form_problem` is the half-span problem on which a form and its reference
-are both solved: :meth:`~bridgeopt.bridge.BridgeScenario.to_problem` (same
+are both solved: :meth:`~bridgeopt.model.bridge.BridgeScenario.to_problem` (same
 domain, deck load, materials, mirror lines and copies), plus the supports the
 form needs, so that the reference stays a fair lower bound:
 
@@ -14,8 +14,8 @@ form needs, so that the reference stays a fair lower bound:
   which the reference gets as well; the anchorage and back stays themselves are
   not sized, in the form or in the reference.
 
-:func:`build_form` turns a spec into a :class:`~bridgeopt.frame.Frame` and its
-free geometry (:class:`~bridgeopt.geometry.NodeMoves`), checking that the form
+:func:`build_form` turns a spec into a :class:`~bridgeopt.solver.frame.Frame` and its
+free geometry (:class:`~bridgeopt.geometry.optimize.NodeMoves`), checking that the form
 fits: nothing above the domain's rise or below its depth; the suspension
 cable's lowest point and a deck arch's crown at least :data:`CLEARANCE` of the
 available height from the deck; a sag or rise large enough to carry its own
@@ -30,16 +30,16 @@ from typing import Mapping
 
 import numpy as np
 
-from ..bridge import BridgeScenario
-from ..errors import InputError, SolveError
-from ..frame import Frame
-from ..geometry import NodeMoves
-from ..problem import Problem, Support
-from .arch import arch_frame
-from .builder import available_heights, deck_level, funicular_heights
-from .cable_stayed import cable_stayed_frame
-from .specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
-from .suspension import suspension_frame
+from bridgeopt.model.bridge import BridgeScenario
+from bridgeopt.errors import InputError, SolveError
+from bridgeopt.solver.frame import Frame
+from bridgeopt.geometry.optimize import NodeMoves
+from bridgeopt.model.problem import Problem, Support
+from bridgeopt.forms.arch import arch_frame
+from bridgeopt.forms.builder import available_heights, deck_level, funicular_heights
+from bridgeopt.forms.cable_stayed import cable_stayed_frame
+from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
+from bridgeopt.forms.suspension import suspension_frame
 
 __all__ = ["form_problem", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
            "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag"]

@@ -2,18 +2,18 @@
 
 A builder collects nodes (merged by position), members with their sense and
 element group, and free geometric parameters (each a column of the linear node
-map of :class:`~bridgeopt.geometry.NodeMoves`), then returns the
-:class:`~bridgeopt.frame.Frame` and its moves.
+map of :class:`~bridgeopt.geometry.optimize.NodeMoves`), then returns the
+:class:`~bridgeopt.solver.frame.Frame` and its moves.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from ..errors import InputError
-from ..frame import Frame, position_tolerance
-from ..geometry import NodeMoves
-from ..problem import Problem
+from bridgeopt.errors import InputError
+from bridgeopt.solver.frame import Frame, position_tolerance
+from bridgeopt.geometry.optimize import NodeMoves
+from bridgeopt.model.problem import Problem
 
 __all__ = ["FrameBuilder", "deck_level", "available_heights"]
 
@@ -161,7 +161,7 @@ def funicular_heights(x, *, start: float, end: float, node_loads, k_line: float,
     """
     from scipy.optimize import root
 
-    from ..elements import curved_coefficients
+    from bridgeopt.solver.elements import curved_coefficients
 
     x = np.asarray(x, dtype=float)
     f = np.asarray(node_loads, dtype=float)

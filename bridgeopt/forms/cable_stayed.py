@@ -18,8 +18,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import InputError
-from .builder import FrameBuilder, deck_level
+from bridgeopt.errors import InputError
+from bridgeopt.forms.builder import FrameBuilder, deck_level
 
 __all__ = ["cable_stayed_frame", "anchor_fractions"]
 

@@ -2,11 +2,11 @@
 
 :func:`solve_form` builds the form (:mod:`bridgeopt.forms.build`) on the
 scenario's half-span problem with the supports it needs, sizes it with the
-layout-optimization LP (:func:`~bridgeopt.frame.size_frame`, equal-strength
+layout-optimization LP (:func:`~bridgeopt.solver.frame.size_frame`, equal-strength
 self-weight elements included), improves its free geometry (pylon height, sag,
 tower height, rise, or every cable or rib node's height) with
-:func:`~bridgeopt.geometry.optimize_geometry`, and solves the reference optimum
-(:func:`~bridgeopt.layout.optimize_layout`) on the same problem.
+:func:`~bridgeopt.geometry.optimize.optimize_geometry`, and solves the reference optimum
+(:func:`~bridgeopt.solver.layout.optimize_layout`) on the same problem.
 """
 
 from __future__ import annotations
@@ -17,17 +17,17 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..bridge import BridgeScenario
-from ..cautions import CAUTIONS
-from ..design import Design
-from ..errors import InputError, SolveError
-from ..frame import Frame, size_frame
-from ..geometry import optimize_geometry
-from ..layout import optimize_layout
-from ..materials import GRAVITY
-from .build import build_form, form_problem, self_weight_sag
-from .builder import deck_level
-from .specs import FormSpec, ReferenceForm, SuspensionForm
+from bridgeopt.model.bridge import BridgeScenario
+from bridgeopt.cautions import CAUTIONS
+from bridgeopt.solver.design import Design
+from bridgeopt.errors import InputError, SolveError
+from bridgeopt.solver.frame import Frame, size_frame
+from bridgeopt.geometry.optimize import optimize_geometry
+from bridgeopt.solver.layout import optimize_layout
+from bridgeopt.model.materials import GRAVITY
+from bridgeopt.forms.build import build_form, form_problem, self_weight_sag
+from bridgeopt.forms.builder import deck_level
+from bridgeopt.forms.specs import FormSpec, ReferenceForm, SuspensionForm
 
 __all__ = ["FormResult", "solve_form", "group_quantities", "GROUPS"]
 
@@ -243,7 +243,7 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
     A funicular cable or rib with a free sag or rise first gets the sag (rise) of
     the lightest exact funicular (:func:`_funicular_search`); the form's node
     moves (sag or rise, tower height, or every node with the free shape) then
-    polish it with :func:`~bridgeopt.geometry.optimize_geometry`.
+    polish it with :func:`~bridgeopt.geometry.optimize.optimize_geometry`.
     """
     best = start
     if getattr(spec, "shape", None) == "funicular":

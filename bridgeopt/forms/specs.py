@@ -20,7 +20,7 @@ import numbers
 from dataclasses import dataclass
 from typing import Mapping
 
-from ..errors import InputError
+from bridgeopt.errors import InputError
 
 __all__ = ["FORM_TYPES", "ReferenceForm", "CableStayedForm", "SuspensionForm", "ArchForm",
            "FormSpec", "parse_form", "form_keys"]

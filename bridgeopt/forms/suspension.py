@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .builder import FrameBuilder, deck_level
+from bridgeopt.forms.builder import FrameBuilder, deck_level
 
 __all__ = ["suspension_frame", "parabola"]
 

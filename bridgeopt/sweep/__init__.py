@@ -6,10 +6,10 @@ solved in a worker process or on a Dask cluster (:mod:`.cases`, :mod:`.run`)
 and recorded as it finishes, so a sweep is resumable (:mod:`.store`).
 """
 
-from .cases import RESULT_COLUMNS, solve_case
-from .expand import Case, Sweep, case_key, expand_sweep, load_sweep
-from .run import SweepOutcome, run_sweep
-from .store import Journal, results_frame, write_tables
+from bridgeopt.sweep.cases import RESULT_COLUMNS, solve_case
+from bridgeopt.sweep.expand import Case, Sweep, case_key, expand_sweep, load_sweep
+from bridgeopt.sweep.run import SweepOutcome, run_sweep
+from bridgeopt.sweep.store import Journal, results_frame, write_tables
 
 __all__ = ["RESULT_COLUMNS", "Case", "Sweep", "SweepOutcome", "Journal", "case_key",
            "expand_sweep", "load_sweep", "run_sweep", "results_frame", "solve_case",

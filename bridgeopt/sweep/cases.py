@@ -14,13 +14,13 @@ from typing import Any
 
 import numpy as np
 
-from ..design import Design
-from ..errors import InputError, SolveError
-from ..forms import FormResult, ReferenceForm, form_problem, solve_form
-from ..geometry import optimize_geometry
-from ..layout import optimize_layout
-from ..multicase import single_case_reference
-from ..scenario import Scenario, parse_scenario, solve_scenario
+from bridgeopt.solver.design import Design
+from bridgeopt.errors import InputError, SolveError
+from bridgeopt.forms import FormResult, ReferenceForm, form_problem, solve_form
+from bridgeopt.geometry.optimize import optimize_geometry
+from bridgeopt.solver.layout import optimize_layout
+from bridgeopt.solver.multicase import single_case_reference
+from bridgeopt.files.scenario import Scenario, parse_scenario, solve_scenario
 
 __all__ = ["RESULT_COLUMNS", "STATUSES", "solve_case", "solve_reference", "reference_group",
            "error_row"]

@@ -47,10 +47,10 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Mapping
 
-from ..errors import InputError
-from ..forms.specs import FORM_TYPES, form_keys
-from ..files import read_toml
-from ..scenario import KEYS
+from bridgeopt.errors import InputError
+from bridgeopt.forms.specs import FORM_TYPES, form_keys
+from bridgeopt.files.io import read_toml
+from bridgeopt.files.scenario import KEYS
 
 __all__ = ["Case", "Sweep", "expand_sweep", "load_sweep", "case_key", "flatten"]
 

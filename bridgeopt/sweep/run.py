@@ -21,11 +21,11 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable
 
-from ..errors import InputError, SolveError
-from ..scenario import parse_scenario
-from .cases import error_row, reference_group, solve_case, solve_reference
-from .expand import Case, Sweep
-from .store import Journal, write_tables
+from bridgeopt.errors import InputError, SolveError
+from bridgeopt.files.scenario import parse_scenario
+from bridgeopt.sweep.cases import error_row, reference_group, solve_case, solve_reference
+from bridgeopt.sweep.expand import Case, Sweep
+from bridgeopt.sweep.store import Journal, write_tables
 
 __all__ = ["SweepOutcome", "run_sweep"]
 

@@ -17,11 +17,11 @@ import os
 from pathlib import Path
 from typing import Any
 
-from ..cautions import CAUTION_LINES, CAUTIONS
-from ..errors import InputError
-from ..files import atomic_write
-from .cases import RESULT_COLUMNS
-from .expand import Sweep
+from bridgeopt.cautions import CAUTION_LINES, CAUTIONS
+from bridgeopt.errors import InputError
+from bridgeopt.files.io import atomic_write
+from bridgeopt.sweep.cases import RESULT_COLUMNS
+from bridgeopt.sweep.expand import Sweep
 
 __all__ = ["Journal", "write_tables", "results_frame", "JOURNAL", "CSV", "PARQUET", "README"]
 

@@ -36,8 +36,8 @@ import numpy as np
 import pytest
 
 from bridgeopt import Domain, Material, PointLoad, Problem, Support, optimize_layout
-from bridgeopt.loadcases import CaseStudy, LoadCase
-from bridgeopt.multicase import optimize_cases
+from bridgeopt.model.loads import CaseStudy, LoadCase
+from bridgeopt.solver.multicase import optimize_cases
 
 L = 2.0          # height of the three-bar truss [m]
 P = 3.0e5        # load [N]

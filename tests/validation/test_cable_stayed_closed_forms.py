@@ -54,8 +54,8 @@ import pytest
 
 from bridgeopt import Domain, LineLoad, Material, Problem, Support
 from bridgeopt.forms.cable_stayed import cable_stayed_frame
-from bridgeopt.frame import size_frame
-from bridgeopt.geometry import optimize_geometry
+from bridgeopt.solver.frame import size_frame
+from bridgeopt.geometry.optimize import optimize_geometry
 from helpers import assert_equilibrium
 
 A = 120.0        # deck length served by the pylon [m]

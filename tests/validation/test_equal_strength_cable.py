@@ -16,7 +16,7 @@ Volume: int A ds = int (T/sigma) sec(theta) dx = (H/sigma) int (1 + z'^2) dx.
 
 The tests solve these equations with scipy.integrate.solve_ivp (DOP853,
 rtol 1e-12, atol 1e-14) and a shooting method (scipy.optimize.brentq) for the
-start slope, and compare with bridgeopt.elements.
+start slope, and compare with bridgeopt.solver.elements.
 """
 
 from __future__ import annotations
@@ -28,7 +28,7 @@ import pytest
 from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
 
-from bridgeopt.elements import centreline, curved_coefficients, sag
+from bridgeopt.solver.elements import centreline, curved_coefficients, sag
 
 SIGN = {"tension": 1.0, "compression": -1.0}
 

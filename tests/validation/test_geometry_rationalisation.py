@@ -30,8 +30,8 @@ import numpy as np
 import pytest
 
 from bridgeopt import PRESETS, BridgeScenario, PointLoad, optimize_layout
-from bridgeopt.frame import frame_from_design
-from bridgeopt.geometry import default_moves, optimize_geometry
+from bridgeopt.solver.frame import frame_from_design
+from bridgeopt.geometry.optimize import default_moves, optimize_geometry
 from helpers import assert_equilibrium
 import test_michell_point_load as michell
 import test_uniform_load_arch as uniform

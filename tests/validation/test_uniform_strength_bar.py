@@ -18,7 +18,7 @@ import pytest
 from scipy.integrate import solve_ivp
 
 from bridgeopt import GRAVITY, Domain, Material, PointLoad, Problem, Support, optimize_layout
-from bridgeopt.elements import vertical_coefficients
+from bridgeopt.solver.elements import vertical_coefficients
 from helpers import assert_equilibrium, assert_optimal_design
 
 #: steel-like values (common practice for structural steel: 355 MPa, 7850 kg/m3)

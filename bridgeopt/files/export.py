@@ -1,0 +1,186 @@
+"""Files of a solved design for the firm's own tools: CSV tables, JSON, SVG and DXF.
+
+:func:`export_design` writes, into one folder,
+
+* ``members.csv``: one row per member (``id``, ``start``, ``end``, end
+  coordinates ``x_start_m`` ..., ``sense``, ``group``, ``horizontal_force_N``,
+  ``axial_force_N``, ``volume_m3``, ``sag_m``);
+* ``nodes.csv``: one row per node (``id``, ``x_m``, ``z_m``, applied load
+  ``load_x_N``, ``load_z_N``, reaction ``reaction_x_N``, ``reaction_z_N``);
+* ``design.json``: the JSON of the solve (:func:`~bridgeopt.files.design_json.design_to_dict`);
+* ``design.svg`` and ``design.dxf``: drawings (:mod:`bridgeopt.files.drawing`);
+* ``README.txt``: what each file holds, the units, and the cautions (the CSV
+  files are plain tables, header first, so they carry the cautions here).
+
+``nodes.csv`` and ``members.csv`` are also a valid proposed layout for
+``bridgeopt judge`` (extra columns are ignored).  :func:`design_from_dict` reads
+``design.json`` back into a :class:`~bridgeopt.solver.design.Design`.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+from typing import Iterable
+
+import numpy as np
+
+from bridgeopt.cautions import CAUTION_LINES
+from bridgeopt.solver.design import Design, Members
+from bridgeopt.files.drawing import write_dxf, write_svg
+from bridgeopt.errors import InputError
+from bridgeopt.files.io import read_json
+from bridgeopt.files.design_json import design_to_dict, write_json
+
+__all__ = ["FORMATS", "export_design", "members_table", "nodes_table", "design_from_dict",
+           "read_design_json"]
+
+#: Formats :func:`export_design` writes, and their files.
+FORMATS = {"csv": ("members.csv", "nodes.csv"), "json": ("design.json",),
+           "svg": ("design.svg",), "dxf": ("design.dxf",)}
+
+
+def members_table(design: Design):
+    """Members as a :class:`pandas.DataFrame` with an ``id`` column first."""
+    df = design.to_frame()
+    df.insert(0, "id", np.arange(len(df)))
+    return df
+
+
+def nodes_table(design: Design):
+    """Nodes as a :class:`pandas.DataFrame` with an ``id`` column first."""
+    df = design.nodes_frame()
+    df.insert(0, "id", np.arange(len(df)))
+    return df
+
+
+def parse_formats(text: str | Iterable[str]) -> tuple[str, ...]:
+    """Formats from ``"csv,json,svg,dxf"`` (or a list), checked."""
+    items = text.split(",") if isinstance(text, str) else list(text)
+    out = tuple(dict.fromkeys(i.strip().lower() for i in items if i.strip()))
+    bad = [f for f in out if f not in FORMATS]
+    if bad or not out:
+        raise InputError("--formats", text, "a comma-separated list of " + ", ".join(FORMATS))
+    return out
+
+
+def _readme(design: Design, formats) -> str:
+    lines = [f"bridgeopt export: {getattr(design.problem, 'name', 'design')}", "",
+             *CAUTION_LINES, "",
+             "Units: m, N, m3; x to the right, z upwards. The modelled part is given (for a "
+             f"bridge, the half span); volumes of the whole structure are {design.copies:g} "
+             "times the model's.", ""]
+    about = {
+        "members.csv": "one row per member: id, start and end node ids, end coordinates "
+                       "[m], sense, element group, horizontal force [N], largest axial force "
+                       "[N], volume [m3], sag [m]",
+        "nodes.csv": "one row per node: id, x_m, z_m [m], applied load and reaction [N]",
+        "design.json": "the whole solve: inputs, nodes, members with centrelines, loads, "
+                       "reactions, statistics, units, cautions",
+        "design.svg": "drawing; one group per element group; blue tension, red compression",
+        "design.dxf": "CAD drawing (metres); one layer per element group; curved members as "
+                      "polylines; notes on layer NOTES",
+    }
+    for f in formats:
+        lines += [f"{name}: {about[name]}" for name in FORMATS[f]]
+    return "\n".join(lines) + "\n"
+
+
+def export_design(design: Design, folder: str | Path, formats: Iterable[str] = tuple(FORMATS),
+                  *, scenario=None, form=None, wall_seconds: float | None = None) -> list[Path]:
+    """Write ``design`` into ``folder`` in ``formats`` (see the module docstring).
+
+    Parameters
+    ----------
+    design : Design
+    folder : path
+        Created if missing.
+    formats : iterable of {"csv", "json", "svg", "dxf"}
+    scenario, form, wall_seconds
+        Passed to :func:`~bridgeopt.files.design_json.design_to_dict` for the JSON.
+
+    Returns
+    -------
+    list of Path
+        The files written, README.txt last.
+    """
+    formats = parse_formats(formats)
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    written = []
+    if "csv" in formats:
+        members_table(design).to_csv(folder / "members.csv", index=False)
+        nodes_table(design).to_csv(folder / "nodes.csv", index=False)
+        written += [folder / "members.csv", folder / "nodes.csv"]
+    if "json" in formats:
+        written.append(write_json(folder / "design.json", design_to_dict(
+            design, scenario=scenario, wall_seconds=wall_seconds, form=form)))
+    if "svg" in formats:
+        written.append(write_svg(design, folder / "design.svg"))
+    if "dxf" in formats:
+        written.append(write_dxf(design, folder / "design.dxf"))
+    (folder / "README.txt").write_text(_readme(design, formats), encoding="utf-8")
+    written.append(folder / "README.txt")
+    return written
+
+
+def _problem_of(inputs: dict):
+    """The problem a design JSON was solved on, from its inputs."""
+    from bridgeopt.forms import form_problem
+    from bridgeopt.files.scenario import parse_scenario
+
+    scenario = parse_scenario(inputs)
+    if scenario.bridge is not None and scenario.form is not None:
+        return form_problem(scenario.bridge, scenario.form)
+    return scenario.problem
+
+
+def _num(v) -> float:
+    return math.nan if v is None else float(v)
+
+
+def design_from_dict(data: dict) -> Design:
+    """A :class:`Design` from the JSON of a solve (:func:`~bridgeopt.files.design_json.design_to_dict`).
+
+    Duals are not stored in the JSON: they come back as nan.  Reactions come back
+    one row per supported node (the JSON sums them per node).
+
+    Raises
+    ------
+    InputError
+        Not the JSON of a solve.
+    """
+    if not isinstance(data, dict) or not str(data.get("schema", "")).startswith(
+            "bridgeopt.design/"):
+        raise InputError("design", "not a design", "the JSON of a solve (schema "
+                         "bridgeopt.design/1, written by bridgeopt solve --json or export)")
+    nodes = np.array([[n["x"], n["z"]] for n in data["nodes"]], dtype=float).reshape(-1, 2)
+    ms = data["members"]
+    members = Members(
+        start=np.array([m["start"] for m in ms], dtype=np.int64),
+        end=np.array([m["end"] for m in ms], dtype=np.int64),
+        sense=np.array([m["sense"] for m in ms], dtype=str),
+        horizontal_force=np.array([_num(m["horizontal_force"]) for m in ms]),
+        force_start=np.array([m["force_start"] for m in ms], dtype=float).reshape(-1, 2),
+        force_end=np.array([m["force_end"] for m in ms], dtype=float).reshape(-1, 2),
+        volume=np.array([_num(m["volume"]) for m in ms]),
+        sag=np.array([_num(m["sag"]) for m in ms]),
+        curves=tuple(np.array(m["curve"], dtype=float).reshape(-1, 2) for m in ms),
+        group=np.array([m.get("group", "member") for m in ms], dtype=str))
+    loads = np.zeros_like(nodes)
+    for q in data.get("loads", []):
+        loads[q["node"]] = (q["fx"], q["fz"])
+    reactions = np.array([[r["node"], r["rx"], r["rz"]] for r in data.get("reactions", [])],
+                         dtype=float).reshape(-1, 3)
+    return Design(status=data["status"], message=data["message"],
+                  volume=_num(data["volume"]), weight=_num(data["weight"]), nodes=nodes,
+                  members=members, loads=loads, reactions=reactions,
+                  duals=np.full_like(nodes, math.nan), stats=data.get("stats", {}),
+                  copies=float(data["copies"]), model_volume=_num(data["model_volume"]),
+                  equilibrium_error=_num(data["stats"].get("equilibrium_error")),
+                  problem=_problem_of(data["inputs"]))
+
+
+def read_design_json(path: str | Path) -> Design:
+    """:func:`design_from_dict` of the JSON file at ``path``."""
+    return design_from_dict(read_json(path, "design JSON file"))

@@ -1,0 +1,286 @@
+"""Reference layout optimization: problem -> ground structure -> LP -> design.
+
+The LP is solved in dimensionless form: lengths divided by the reference length
+L (largest side of the domain's bounding box), forces by the total applied load
+P, stresses by the tension design stress sigma; k = rho*g/sigma is multiplied
+by L, and the volume is converted back with P*L/sigma.  HiGHS's tolerances are
+absolute, so an LP stated in SI units (costs near 1e-8 m3/N) would be accepted
+as optimal far from the optimum.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from bridgeopt.solver.design import Design, Members, equilibrium_residual
+from bridgeopt.solver.elements import PHI_LIMIT, SENSES, centreline, sag
+from bridgeopt.errors import InputError, SolveError
+from bridgeopt.solver.ground import Grid, build_grid, candidate_pairs
+from bridgeopt.solver.lp import LPData, LPSolution, column_entries, solve_lp
+from bridgeopt.model.materials import GRAVITY
+from bridgeopt.model.problem import Problem
+
+__all__ = ["optimize_layout", "nodal_loads", "restrained_rows", "design_from_lp", "scales"]
+
+
+def nodal_loads(problem: Problem, grid: Grid) -> np.ndarray:
+    """Applied loads lumped at grid nodes, (n, 2). [N]
+
+    A line load is shared between the nodes on its line with linear (hat)
+    shape functions, so the lumped loads have the same resultant and moment.
+    """
+    f = np.zeros((grid.n, 2))
+    for i, load in enumerate(problem.loads):
+        f[grid.node_at(load.at, f"load[{i}].at")] += load.force
+    for i, q in enumerate(problem.line_loads):
+        (xs, z), (xe, _) = q.start, q.end
+        tol = 1e-6 * max(grid.step)
+        on = np.nonzero((np.abs(grid.xz[:, 1] - z) <= tol)
+                        & (grid.xz[:, 0] >= xs - grid.step[0] + tol)
+                        & (grid.xz[:, 0] <= xe + grid.step[0] - tol))[0]
+        on = on[np.argsort(grid.xz[on, 0])]
+        x = grid.xz[on, 0]
+        if len(on) < 2 or x[0] > xs + tol or x[-1] < xe - tol:
+            raise InputError(f"line_load[{i}].from", [xs, z],
+                             "a horizontal line through grid nodes of the domain, "
+                             "from one node to another")
+        for n0, n1, x0, x1 in zip(on[:-1], on[1:], x[:-1], x[1:]):
+            lo, hi = max(x0, xs), min(x1, xe)
+            if hi <= lo:
+                continue
+            h = x1 - x0
+            share0 = (x1 * (hi - lo) - 0.5 * (hi * hi - lo * lo)) / h
+            share1 = (hi - lo) - share0
+            f[n0, 1] -= q.intensity * share0
+            f[n1, 1] -= q.intensity * share1
+    return f
+
+
+def restrained_rows(problem: Problem, grid: Grid) -> np.ndarray:
+    """Equilibrium rows (2*node + direction) that carry a free reaction."""
+    rows = set()
+    for i, s in enumerate(problem.supports):
+        node = grid.node_at(s.at, f"support[{i}].at")
+        if "x" in s.fix:
+            rows.add(2 * node)
+        if "z" in s.fix:
+            rows.add(2 * node + 1)
+    tol = 1e-6 * max(grid.step)
+    for m in problem.mirror_lines:
+        for node in np.nonzero(np.abs(grid.xz[:, 0] - m) <= tol)[0]:
+            rows.add(2 * int(node))
+    return np.array(sorted(rows), dtype=np.int64)
+
+
+def _span_limit_message(problem: Problem, grid: Grid, a, b) -> str | None:
+    """Sentence about members no equal-strength element can span, if any were dropped."""
+    lx = grid.xz[b, 0] - grid.xz[a, 0]
+    parts = []
+    for sense in SENSES:
+        k = problem.k(sense)
+        if k > 0 and np.any(k * lx >= PHI_LIMIT):
+            limit = math.pi / k
+            parts.append(f"{sense} elements cannot reach further than pi*sigma/(rho*g) = "
+                         f"{limit:.6g} m horizontally")
+    if not parts:
+        return None
+    return ("; ".join(parts) + " (equal-strength elements carrying their own weight), and the "
+            "members that would have to are not generated")
+
+
+#: Grids at least twice this many cells across start from a coarser grid's duals.
+COARSE_MIN = 12
+
+
+def _coarse_duals(problem: Problem, grid: Grid) -> np.ndarray | None:
+    """Dimensionless duals of the problem on a grid twice as coarse, interpolated to ``grid``.
+
+    The coarse problem has the same domain and loads, hence the same reference
+    length, force and stress, so its dimensionless duals compare directly.
+    """
+    from scipy.interpolate import LinearNDInterpolator, NearestNDInterpolator
+
+    coarse = dataclasses.replace(problem, spacing=2 * problem.spacing)
+    try:
+        cgrid, _, _, sol, _ = _solve(coarse, member_adding=True, batch=None, coarse_start=True)
+    except (SolveError, InputError):
+        return None
+    u = sol.duals.reshape(-1, 2)
+    out = np.zeros((grid.n, 2))
+    for c in range(2):
+        v = LinearNDInterpolator(cgrid.xz, u[:, c])(grid.xz)
+        bad = ~np.isfinite(v)
+        if bad.any():
+            v[bad] = NearestNDInterpolator(cgrid.xz, u[:, c])(grid.xz[bad])
+        out[:, c] = v
+    return out.ravel()
+
+
+def scales(problem: Problem) -> tuple[float, float, float]:
+    """Reference length [m], force [N] and stress [Pa] of the dimensionless LP."""
+    x0, x1, z0, z1 = problem.domain.bounds
+    return max(x1 - x0, z1 - z0), problem.total_applied_load(), problem.strength("tension")
+
+
+def _solve(problem: Problem, *, member_adding: bool, batch: int | None, coarse_start: bool,
+           allowed: np.ndarray | None = None):
+    """Grid, loads, LP data, LP optimum and scales of ``problem`` (``allowed``: see LPData)."""
+    grid = build_grid(problem)
+    f = nodal_loads(problem, grid)
+    fixed = restrained_rows(problem, grid)
+    a, b = candidate_pairs(problem, grid)
+    ref_len, ref_force, ref_sigma = scales(problem)
+    origin = np.array(grid.origin)
+    data = LPData(
+        xz=(grid.xz - origin) / ref_len, a=a, b=b,
+        k={s: problem.k(s) * ref_len for s in SENSES},
+        cost_scale={s: ref_sigma / problem.strength(s) for s in SENSES},
+        load=(f / ref_force).ravel(), fixed=fixed,
+        reach=np.abs(grid.ij[b] - grid.ij[a]).max(axis=1), allowed=allowed)
+    guess = None
+    if member_adding and coarse_start and min(problem.grid_shape()) >= 2 * COARSE_MIN:
+        guess = _coarse_duals(problem, grid)
+    try:
+        sol = solve_lp(data, member_adding=member_adding, batch=batch, dual_guess=guess)
+    except SolveError as err:
+        why = _span_limit_message(problem, grid, a, b) if err.status == "infeasible" else None
+        if why:
+            raise SolveError("span-limit", f"{err.message}: {why}.") from None
+        raise
+    return grid, f, data, sol, (ref_len, ref_force, ref_sigma)
+
+
+def optimize_layout(problem: Problem, *, member_adding: bool = True,
+                    batch: int | None = None, coarse_start: bool = True) -> Design:
+    """Minimum-volume layout of ``problem`` (the reference optimum).
+
+    Parameters
+    ----------
+    problem : Problem
+    member_adding : bool
+        Use member adding (default); False solves the full ground structure in
+        one LP (same optimum; for checks and benchmarks).
+    batch : int, optional
+        Most members added per member-adding round.
+    coarse_start : bool
+        On fine grids, seed member adding with the members that the duals of a
+        grid twice as coarse predict to be active (fewer rounds; same optimum).
+
+    Returns
+    -------
+    Design
+
+    Raises
+    ------
+    InputError
+        A support, load or line load is not on a grid node of the domain.
+    SolveError
+        No structure can carry the loads (the message says why when the
+        equal-strength span limit is the cause), or HiGHS failed.
+
+    References
+    ----------
+    .. [1] W.S. Dorn, R.E. Gomory, H.J. Greenberg (1964), J. de Mecanique 3:25-52.
+    .. [2] M. Gilbert, A. Tyas (2003), Engineering Computations 20(8):1044-1064.
+    .. [3] H.E. Fairclough et al. (2018), Proc. R. Soc. A 474:20170726.
+    """
+    grid, f, data, sol, refs = _solve(problem, member_adding=member_adding, batch=batch,
+                                      coarse_start=coarse_start)
+    if problem.domain.excluded and not problem.weightless:
+        grid, f, data, sol, refs = _keep_curves_clear(
+            problem, grid, data, sol, member_adding=member_adding, batch=batch,
+            coarse_start=coarse_start)
+    return design_from_lp(problem, grid, data, sol, f, *refs)
+
+
+#: Most re-solves that forbid curved members entering an excluded zone.
+CLEARANCE_ROUNDS = 50
+
+
+def _keep_curves_clear(problem: Problem, grid: Grid, data: LPData, sol: LPSolution, **how):
+    """Re-solve, forbidding active curved members whose centreline enters an excluded zone.
+
+    See :mod:`bridgeopt.solver.clearance`.  Raises :class:`SolveError` when no structure is
+    left that keeps clear of the zones.
+    """
+    from bridgeopt.solver.clearance import curves_entering_zones
+
+    allowed = np.ones((len(data.a), 2), dtype=bool)
+    for _ in range(CLEARANCE_ROUNDS):
+        a, b = data.a[sol.pair], data.b[sol.pair]
+        senses = np.array(SENSES)[sol.sense]
+        bad = curves_entering_zones(problem, grid.xz[a], grid.xz[b], senses)
+        if not bad.any():
+            return grid, nodal_loads(problem, grid), data, sol, scales(problem)
+        allowed[sol.pair[bad], sol.sense[bad]] = False
+        try:
+            grid, _, data, sol, _ = _solve(problem, allowed=allowed, **how)
+        except SolveError as err:
+            if err.status != "infeasible":
+                raise
+            raise SolveError("infeasible", f"{err.message} with every member, curved "
+                             "centrelines included, clear of the excluded zones") from None
+    raise SolveError("clearance", f"curved members still entered an excluded zone after "
+                     f"{CLEARANCE_ROUNDS} re-solves")
+
+
+def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
+                   f: np.ndarray, ref_len: float, ref_force: float, ref_sigma: float,
+                   group: np.ndarray | None = None) -> Design:
+    """Turn a dimensionless LP optimum into a :class:`Design` in SI units."""
+    n_members = len(sol.pair)
+    a, b = data.a[sol.pair], data.b[sol.pair]
+    start_f = np.zeros((n_members, 2))
+    end_f = np.zeros((n_members, 2))
+    cost = np.zeros(n_members)
+    for s, sense in enumerate(SENSES):
+        sel = sol.sense == s
+        c, rows, vals = column_entries(data, sol.pair[sel], sense)
+        cost[sel] = c
+        start_f[sel] = vals[:, :2]
+        end_f[sel] = vals[:, 2:]
+    force = sol.force * ref_force
+    start_f *= force[:, None]
+    end_f *= force[:, None]
+    # dimensionless cost * force -> volume: times P*L/sigma_ref
+    volume = cost * sol.force * ref_force * ref_len / ref_sigma
+    vertical = np.abs(grid.xz[b, 0] - grid.xz[a, 0]) <= 1e-9 * ref_len
+    horizontal = np.where(vertical, 0.0, np.abs(start_f[:, 0]))
+
+    # compact node numbering: member ends, loaded and supported nodes
+    loaded = np.nonzero(np.any(f != 0, axis=1))[0]
+    used = np.unique(np.concatenate([a, b, loaded, data.fixed // 2]))
+    index = -np.ones(grid.n, dtype=np.int64)
+    index[used] = np.arange(len(used))
+    nodes = grid.xz[used]
+    senses = np.array([SENSES[s] for s in sol.sense], dtype=object).astype(str)
+    ks = [problem.k(s) for s in senses]
+    p, q = grid.xz[a], grid.xz[b]
+    curves = tuple(centreline(p[i], q[i], ks[i], senses[i]) for i in range(n_members))
+    sags = np.array([sag(p[i], q[i], ks[i], senses[i]) for i in range(n_members)])
+    members = Members(start=index[a], end=index[b], sense=senses, horizontal_force=horizontal,
+                      force_start=start_f, force_end=end_f, volume=volume, sag=sags,
+                      curves=curves,
+                      group=np.full(n_members, "member") if group is None else group)
+    reactions = np.column_stack([index[data.fixed // 2], np.zeros(len(data.fixed)),
+                                 np.zeros(len(data.fixed))])
+    reactions[np.arange(len(data.fixed)), 1 + data.fixed % 2] = sol.reactions * ref_force
+    loads = f[used]
+    resid = equilibrium_residual(nodes, members, loads, reactions)
+    weights = np.array([problem.density(s) for s in senses]) * GRAVITY * volume
+    model_volume = float(volume.sum())
+    duals = sol.duals.reshape(-1, 2)[used] * ref_len / ref_sigma
+    return Design(
+        status="optimal",
+        message=("proven optimum of the layout-optimization LP" if sol.gap == 0 else
+                 f"optimum of the layout-optimization LP within a proven gap of {sol.gap:.1e}"),
+        volume=problem.copies * model_volume, weight=problem.copies * float(weights.sum()),
+        nodes=nodes, members=members, loads=loads, reactions=reactions, duals=duals,
+        stats={"rounds": sol.rounds, "columns": sol.columns, "candidates": sol.candidates,
+               "seconds": sol.seconds, "grid_nodes": grid.n, "gap": sol.gap,
+               "lp_volume": problem.copies * sol.objective * ref_force * ref_len / ref_sigma},
+        copies=problem.copies, model_volume=model_volume,
+        equilibrium_error=float(np.abs(resid).max() / ref_force), problem=problem)

@@ -1,0 +1,560 @@
+"""Layout optimization for several load cases at once, with lumped self-weight and costs.
+
+Formulation (plastic, Hemp 1973 ch. 4; Pritchard, Gilbert & Tyas 2005).  For
+every candidate pair of nodes and element group g (one group for a single
+material; a tension group and a compression group when the materials or the
+prices differ) the variables are the cross-section area a_m >= 0 and, for every
+load case k, the axial force q_km (free; tension positive, constant along the
+straight prismatic member).  With l_m the length and p_g the price per m3::
+
+    minimise    sum_m p_g l_m a_m                         (volume when p_g = 1)
+    subject to  B_k q_k + R r_k + W a = -f_k              for every case k
+                q_km - sigma_t a_m <= 0,  q_km + sigma_c a_m >= 0
+
+B holds the unit vectors of the members (force q on end P is q n, on end Q
+-q n, n the unit vector from P to Q); R puts a free reaction on every
+restrained direction; W a lumps each member's weight rho g l_m a_m half at each
+end node (downwards), the same in every case.  A tension-only group has
+q_km >= 0, a compression-only group q_km <= 0.
+
+The weight is *lumped*: the members are straight and prismatic, their force
+is taken as constant, and the weight is carried to the nodes without bending
+or axial variation.  It differs slightly from the equal-strength elements of
+the single-case reference (:mod:`bridgeopt.solver.elements`), see docs/method.md.
+
+Member adding (dual check)
+--------------------------
+Let y_k be the duals of case k's equilibrium rows (HiGHS convention: the
+reduced cost of a column is its cost minus its column dotted with the row
+duals).  A pair m not yet in the LP brings a column a_m (cost p l) and free
+columns q_km (cost 0), and rows t_k (<= 0, dual lambda_k <= 0) and c_k (>= 0,
+dual mu_k >= 0).  The current duals stay optimal for the larger LP if there
+are lambda, mu with
+
+* q_km free, zero reduced cost: -e_k - lambda_k - mu_k = 0, where
+  e_k = y_k . b_m is the virtual elongation of m in case k;
+* a_m: p l - sum_k g_k - sum_k (-sigma_t lambda_k + sigma_c mu_k) >= 0, where
+  g_k = y_k . w_m is the virtual work of m's lumped weight in case k.
+
+The smallest admissible sum_k (-sigma_t lambda_k + sigma_c mu_k) is
+sum_k max(sigma_t e_k, -sigma_c e_k) (put all of -e_k on the one multiplier
+whose sign allows it), so the pair **violates** the dual check when::
+
+    sum_k [ max(sigma_t e_k, -sigma_c e_k) + g_k ]  >  p l
+
+(for a tension-only group the max is max(sigma_t e_k, 0), for a
+compression-only group max(-sigma_c e_k, 0)).  Members are added, most
+violated first by the ratio of the two sides, until none violates by more than
+a relative 1e-7; the result is then the full ground-structure optimum.
+
+Everything is dimensionless as in :mod:`bridgeopt.solver.layout`: lengths over the
+reference length L, forces over the largest case's total load P, stresses over
+the tension design stress sigma, areas over P/sigma, prices over the tension
+price.
+
+References
+----------
+.. [1] W.S. Dorn, R.E. Gomory, H.J. Greenberg (1964), "Automatic design of
+   optimal structures", J. de Mecanique 3:25-52.
+.. [2] W.S. Hemp (1973), Optimum Structures, Clarendon Press, Oxford (ch. 4,
+   alternative loads).
+.. [3] J.C. Nagtegaal, W. Prager (1973), "Optimal layout of a truss for
+   alternative loads", Int. J. Mech. Sci. 15:583-592.
+.. [4] M. Gilbert, A. Tyas (2003), "Layout optimization of large-scale
+   pin-jointed frames", Engineering Computations 20(8):1044-1064.
+.. [5] T.J. Pritchard, M. Gilbert, A. Tyas (2005), "Plastic layout optimization
+   of large-scale frameworks subject to multiple load cases, member
+   self-weight and with joint length penalties", 6th World Congress of
+   Structural and Multidisciplinary Optimization, Rio de Janeiro.
+.. [6] Q. Huangfu, J.A.J. Hall (2018), Math. Prog. Comp. 10:119-142 (HiGHS).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import logging
+import time
+from dataclasses import dataclass
+
+import highspy
+import numpy as np
+
+from bridgeopt.errors import SolveError
+from bridgeopt.solver.ground import build_grid, candidate_pairs
+from bridgeopt.solver.layout import nodal_loads, restrained_rows
+from bridgeopt.model.loads import CaseStudy, UnitCosts
+from bridgeopt.solver.lp import PRICE_CHUNK, PRICE_TOL, _silent_highs
+from bridgeopt.model.materials import GRAVITY
+
+__all__ = ["CaseDesign", "optimize_cases", "single_case_reference", "MAX_FULL_COLUMNS"]
+
+log = logging.getLogger(__name__)
+
+#: Without member adding, the whole ground structure goes into one LP; refuse
+#: more columns than this (about a 12 x 12 grid with 4 cases), as the LP's
+#: memory and time grow with cases x candidates.
+MAX_FULL_COLUMNS = 400_000
+#: Safety stop on member-adding rounds.
+MAX_ROUNDS = 200
+#: Member adding solves each round by the interior point method without
+#: crossover (seen 20 times faster than simplex on these degenerate LPs), adds
+#: the members that violate the dual check, and stops once the proven relative
+#: optimality gap 1 - 1/max(work/cost) is below GAP_TOL (the dual check is
+#: homogeneous in the duals: dividing them by the largest ratio makes every
+#: column dual feasible and bounds the optimum from below).  The last LP is then
+#: solved again with crossover, to a vertex, for clean member forces.
+GAP_TOL = 1e-6
+
+
+@dataclass(frozen=True)
+class _Data:
+    """Dimensionless multi-case LP input."""
+
+    xz: np.ndarray            # (n, 2) / L
+    a: np.ndarray             # pair ends
+    b: np.ndarray
+    reach: np.ndarray
+    loads: np.ndarray         # (K, 2n) / P
+    fixed: np.ndarray         # restrained rows (per case)
+    groups: tuple             # per group: (name, sigma_t', sigma_c', k', price')
+
+
+def _groups(study: CaseStudy, sigma_ref: float, ref_len: float) -> tuple:
+    """Element groups: (name, sigma_t, sigma_c, rho g L / sigma_ref, price), dimensionless.
+
+    sigma_t = 0 (or sigma_c = 0) makes a compression-only (tension-only) group.
+    """
+    p = study.problem
+    costs = study.costs or UnitCosts()
+    one = p.compression_material is None and costs.tension == costs.compression
+    kk = lambda rho: rho * GRAVITY * ref_len / sigma_ref  # noqa: E731
+    if one:
+        m = p.material
+        return (("member", m.tension_strength / sigma_ref, m.compression_strength / sigma_ref,
+                 kk(m.density), 1.0),)
+    return (("tension", p.strength("tension") / sigma_ref, 0.0, kk(p.density("tension")), 1.0),
+            ("compression", 0.0, p.strength("compression") / sigma_ref,
+             kk(p.density("compression")), costs.compression / costs.tension))
+
+
+def _geometry(data: _Data, pair: np.ndarray):
+    """Length and unit vector (P to Q) of the pairs."""
+    d = data.xz[data.b[pair]] - data.xz[data.a[pair]]
+    length = np.hypot(d[:, 0], d[:, 1])
+    return length, d / length[:, None]
+
+
+class _Model:
+    """The LP over a set of (pair, group) members, rebuilt from scratch each round."""
+
+    def __init__(self, data: _Data):
+        self.data = data
+        self.K = data.loads.shape[0]
+        self.n2 = data.loads.shape[1]
+        self.in_lp = np.zeros((len(data.a), len(data.groups)), dtype=bool)
+
+    def solve(self, exact: bool = True):
+        """Solve the LP over the members in it; ``exact=False``: interior point, no crossover."""
+        d, K, n2 = self.data, self.K, self.n2
+        pair, grp = np.nonzero(self.in_lp)
+        m = len(pair)
+        length, unit = _geometry(d, pair)
+        g = np.array([d.groups[i][1:] for i in range(len(d.groups))])  # (G, 4)
+        st, sc, kw, price = (g[grp, j] for j in range(4))
+        nfix = len(d.fixed)
+        # columns: [a (m)] [q case 0 (m)] ... [q case K-1 (m)] [r case 0 (nfix)] ...
+        n_eq = K * n2
+        # rows: [eq case 0 (n2)] ... [t rows case k (m)] ... [c rows case k (m)]
+        rows_t = n_eq + np.arange(K)[:, None] * m + np.arange(m)[None, :]
+        rows_c = n_eq + K * m + np.arange(K)[:, None] * m + np.arange(m)[None, :]
+        ea, eb = d.a[pair], d.b[pair]
+        ri, ci, vi = [], [], []
+        col = np.arange(m)
+        half_w = -0.5 * kw * length
+        for k in range(K):
+            off = k * n2
+            # a columns: lumped weight in z rows, stress rows
+            ri += [off + 2 * ea + 1, off + 2 * eb + 1, rows_t[k], rows_c[k]]
+            ci += [col, col, col, col]
+            vi += [half_w, half_w, -st, sc]
+            qc = m * (1 + k) + col
+            ri += [off + 2 * ea, off + 2 * ea + 1, off + 2 * eb, off + 2 * eb + 1,
+                   rows_t[k], rows_c[k]]
+            ci += [qc] * 6
+            vi += [unit[:, 0], unit[:, 1], -unit[:, 0], -unit[:, 1], np.ones(m), np.ones(m)]
+            rc = m * (1 + K) + k * nfix + np.arange(nfix)
+            ri.append(off + d.fixed)
+            ci.append(rc)
+            vi.append(np.ones(nfix))
+        r = np.concatenate(ri).astype(np.int64)
+        c = np.concatenate(ci).astype(np.int64)
+        v = np.concatenate(vi).astype(float)
+        keep = v != 0
+        r, c, v = r[keep], c[keep], v[keep]
+        n_col = m * (1 + K) + K * nfix
+        n_row = n_eq + 2 * K * m
+        order = np.lexsort((r, c))
+        r, c, v = r[order], c[order], v[order]
+        start = np.zeros(n_col + 1, dtype=np.int64)
+        np.add.at(start, c + 1, 1)
+        np.cumsum(start, out=start)
+        inf = highspy.kHighsInf
+        cost = np.concatenate([price * length, np.zeros(n_col - m)])
+        lower = np.concatenate([np.zeros(m)] + [np.where(sc == 0, 0.0, -inf)] * K
+                               + [np.full(K * nfix, -inf)])
+        upper = np.concatenate([np.full(m, inf)] + [np.where(st == 0, 0.0, inf)] * K
+                               + [np.full(K * nfix, inf)])
+        rhs = -d.loads.ravel()
+        row_lo = np.concatenate([rhs, np.full(K * m, -inf), np.zeros(K * m)])
+        row_hi = np.concatenate([rhs, np.zeros(K * m), np.full(K * m, inf)])
+        lp = highspy.HighsLp()
+        lp.num_col_, lp.num_row_ = int(n_col), int(n_row)
+        lp.col_cost_, lp.col_lower_, lp.col_upper_ = cost, lower, upper
+        lp.row_lower_, lp.row_upper_ = row_lo, row_hi
+        lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+        lp.a_matrix_.num_col_, lp.a_matrix_.num_row_ = int(n_col), int(n_row)
+        lp.a_matrix_.start_ = start.astype(np.int32)
+        lp.a_matrix_.index_ = r.astype(np.int32)
+        lp.a_matrix_.value_ = v
+        h = _silent_highs(0)
+        h.setOptionValue("solver", "ipm")
+        h.setOptionValue("run_crossover", "on" if exact else "off")
+        h.passModel(lp)
+        h.run()
+        status = h.getModelStatus()
+        if status != highspy.HighsModelStatus.kOptimal:
+            infeasible = status in (highspy.HighsModelStatus.kInfeasible,
+                                    highspy.HighsModelStatus.kUnboundedOrInfeasible)
+            return ("infeasible" if infeasible else h.modelStatusToString(status)), None
+        sol = h.getSolution()
+        x = np.asarray(sol.col_value)
+        y = np.asarray(sol.row_dual)[:n_eq].reshape(K, n2)
+        out = {"pair": pair, "group": grp, "area": x[:m],
+               "force": x[m:m * (1 + K)].reshape(K, m).T,
+               "reactions": x[m * (1 + K):].reshape(K, nfix),
+               "duals": y, "objective": float(h.getInfo().objective_function_value),
+               "length": length, "unit": unit}
+        return "optimal", out
+
+    def price(self, y: np.ndarray, tol: float = PRICE_TOL):
+        """Violating (pair, group, ratio) for the duals y (K, 2n), chunk by chunk."""
+        d = self.data
+        found = []
+        n_pairs = len(d.a)
+        yx, yz = y[:, 0::2], y[:, 1::2]            # (K, n)
+        for s0 in range(0, n_pairs, PRICE_CHUNK):
+            pair = np.arange(s0, min(n_pairs, s0 + PRICE_CHUNK))
+            length, unit = _geometry(d, pair)
+            a, b = d.a[pair], d.b[pair]
+            # e_k = y_k . b_m: (m, K)
+            e = ((yx[:, a] - yx[:, b]) * unit[:, 0] + (yz[:, a] - yz[:, b]) * unit[:, 1]).T
+            zsum = (yz[:, a] + yz[:, b]).T                 # (m, K)
+            for gi, (_, st, sc, kw, price) in enumerate(d.groups):
+                free = ~self.in_lp[pair, gi]
+                if not free.any():
+                    continue
+                gain = np.maximum(st * e, -sc * e).clip(min=0.0) if (st and sc) else (
+                    np.maximum(st * e, 0.0) if st else np.maximum(-sc * e, 0.0))
+                work = gain.sum(axis=1) - 0.5 * kw * length * zsum.sum(axis=1)
+                cost = price * length
+                bad = free & (work > cost * (1.0 + tol))
+                if bad.any():
+                    found.append((pair[bad], np.full(bad.sum(), gi), work[bad] / cost[bad]))
+        if not found:
+            return None
+        return tuple(np.concatenate(x) for x in zip(*found))
+
+
+@dataclass(frozen=True)
+class CaseDesign:
+    """A structure that carries every load case of a :class:`CaseStudy`.
+
+    Attributes
+    ----------
+    status, message : str
+    volume : float
+        Material volume of the reported structure (``copies`` times the model). [m3]
+    cost : float
+        Priced volume (``copies`` times the model), in the study's currency; the
+        volume when no costs are given. [currency or m3]
+    weight : float
+        Self-weight of the reported structure. [N]
+    nodes : (n, 2) float array [m]
+    start, end : (m,) int arrays: member ends (indices into ``nodes``).
+    group : (m,) str array: ``"member"``, or ``"tension"`` / ``"compression"``.
+    area : (m,) float array: cross-section area. [m2]
+    length : (m,) float array [m]
+    member_volume : (m,) float array [m3]
+    forces : (m, K) float array: axial force in each case, tension positive. [N]
+    governing : (m,) int array: the case with the largest |q|/(sigma a).
+    utilisation : (m, K) float array: |q| / (sigma a) per case. [-]
+    loads : (K, n, 2) float array: applied nodal loads per case (self-weight excluded). [N]
+    reactions : (K, r, 3) float array: rows (node, Rx, Rz) per case. [-, N, N]
+    case_names : tuple of str
+    stats : dict
+    copies : float
+    study : CaseStudy
+    """
+
+    status: str
+    message: str
+    volume: float
+    cost: float
+    weight: float
+    nodes: np.ndarray
+    start: np.ndarray
+    end: np.ndarray
+    group: np.ndarray
+    area: np.ndarray
+    length: np.ndarray
+    member_volume: np.ndarray
+    forces: np.ndarray
+    governing: np.ndarray
+    utilisation: np.ndarray
+    loads: np.ndarray
+    reactions: np.ndarray
+    case_names: tuple
+    stats: dict
+    copies: float
+    study: object = dataclasses.field(repr=False, default=None)
+
+    def member_weight(self) -> np.ndarray:
+        """Self-weight of each member of the model. [N]"""
+        p = self.study.problem
+        dens = np.where(self.group == "compression", p.density("compression"),
+                        p.density("tension") if self.study.problem.compression_material is not None
+                        else p.material.density)
+        return dens * GRAVITY * self.member_volume
+
+    def residual(self, case: int) -> np.ndarray:
+        """Out-of-balance force at every node in ``case``, (n, 2). [N]
+
+        Member end forces (q n on the start node, -q n on the end node), half of
+        each member's weight at each end, applied loads and reactions.
+        """
+        r = np.array(self.loads[case], dtype=float)
+        unit = (self.nodes[self.end] - self.nodes[self.start]) / self.length[:, None]
+        q = self.forces[:, case]
+        np.add.at(r, self.start, q[:, None] * unit)
+        np.add.at(r, self.end, -q[:, None] * unit)
+        w = self.member_weight()
+        np.add.at(r[:, 1], self.start, -0.5 * w)
+        np.add.at(r[:, 1], self.end, -0.5 * w)
+        for node, rx, rz in self.reactions[case]:
+            r[int(node)] += (rx, rz)
+        return r
+
+    def governing_counts(self) -> dict:
+        """Number of members each case governs, by case name."""
+        counts = np.bincount(self.governing, minlength=len(self.case_names))
+        return {n: int(c) for n, c in zip(self.case_names, counts)}
+
+    def to_frame(self):
+        """Members as a :class:`pandas.DataFrame` (one row per member; forces per case)."""
+        import pandas as pd
+
+        df = pd.DataFrame({
+            "start": self.start, "end": self.end,
+            "x_start_m": self.nodes[self.start, 0], "z_start_m": self.nodes[self.start, 1],
+            "x_end_m": self.nodes[self.end, 0], "z_end_m": self.nodes[self.end, 1],
+            "group": self.group, "area_m2": self.area, "length_m": self.length,
+            "volume_m3": self.member_volume,
+            "governing_case": [self.case_names[i] for i in self.governing],
+        })
+        for k, name in enumerate(self.case_names):
+            df[f"force_{name}_N"] = self.forces[:, k]
+        return df
+
+    def summary(self) -> str:
+        """A few lines for the engineer."""
+        counts = ", ".join(f"{n}: {c}" for n, c in self.governing_counts().items())
+        return (f"{self.status}: volume {self.volume:.6g} m3, cost {self.cost:.6g}, weight "
+                f"{self.weight:.6g} N, {len(self.start)} members; governing case (members) "
+                f"{counts}; {self.stats.get('rounds', 0)} LP rounds, "
+                f"{self.stats.get('seconds', 0.0):.2f} s")
+
+
+def _data(study: CaseStudy):
+    problem = study.problem
+    grid = build_grid(problem)
+    fixed = restrained_rows(problem, grid)
+    a, b = candidate_pairs(problem, grid)
+    x0, x1, z0, z1 = problem.domain.bounds
+    ref_len = max(x1 - x0, z1 - z0)
+    ref_force = max(study.total_load(k) for k in range(len(study.cases)))
+    ref_sigma = problem.strength("tension")
+    f = []
+    for k in range(len(study.cases)):
+        loads, lines = study.case_loads(k)
+        f.append(nodal_loads(dataclasses.replace(problem, loads=loads, line_loads=lines), grid))
+    f = np.array(f)                                          # (K, n, 2) [N]
+    data = _Data(xz=(grid.xz - np.array(grid.origin)) / ref_len, a=a, b=b,
+                 reach=np.abs(grid.ij[b] - grid.ij[a]).max(axis=1),
+                 loads=(f / ref_force).reshape(len(study.cases), -1), fixed=fixed,
+                 groups=_groups(study, ref_sigma, ref_len))
+    return grid, f, data, (ref_len, ref_force, ref_sigma)
+
+
+def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
+                   batch: int | None = None) -> CaseDesign:
+    """Least-volume (or least-cost) structure carrying every load case of ``study``.
+
+    Parameters
+    ----------
+    study : CaseStudy
+    member_adding : bool
+        Add members by the dual check of the module docstring (default); False
+        solves the whole ground structure in one LP (at most
+        :data:`MAX_FULL_COLUMNS` columns).
+    batch : int, optional
+        Most members added per round (default max(1000, 10 % of those in the LP)).
+
+    Returns
+    -------
+    CaseDesign
+
+    Raises
+    ------
+    InputError
+        A load or support off the grid.
+    SolveError
+        No structure can carry every case, the full ground structure is too
+        large, or HiGHS failed.
+
+    References
+    ----------
+    .. [1] W.S. Hemp (1973), Optimum Structures, Clarendon Press (ch. 4).
+    .. [2] T.J. Pritchard, M. Gilbert, A. Tyas (2005), 6th World Congress of
+       Structural and Multidisciplinary Optimization.
+    .. [3] M. Gilbert, A. Tyas (2003), Engineering Computations 20(8):1044-1064.
+    """
+    t0 = time.perf_counter()
+    grid, f, data, (ref_len, ref_force, ref_sigma) = _data(study)
+    K = len(study.cases)
+    n_pairs, n_groups = len(data.a), len(data.groups)
+    model = _Model(data)
+    if not member_adding:
+        cols = n_pairs * n_groups * (1 + K)
+        if cols > MAX_FULL_COLUMNS:
+            raise SolveError("too-large", f"the full ground structure has {cols} columns "
+                             f"(> {MAX_FULL_COLUMNS}); use member adding or a coarser grid")
+    reach = 1 if member_adding else np.inf
+    rounds = 0
+    exact = not member_adding
+    while True:
+        model.in_lp[data.reach <= reach] = True
+        rounds += 1
+        status, out = model.solve(exact)
+        if status == "optimal" or model.in_lp.all():
+            break
+        reach *= 2
+    gap = 0.0
+    while status == "optimal" and member_adding and rounds < MAX_ROUNDS:
+        found = model.price(out["duals"])
+        if found is None:
+            gap = 0.0
+            break
+        pair, grp, ratio = found
+        gap = max(0.0, 1.0 - 1.0 / float(ratio.max()))
+        if gap <= GAP_TOL:
+            break
+        limit = batch or max(1000, int(0.1 * model.in_lp.sum()))
+        if len(pair) > limit:
+            top = np.argpartition(-ratio, limit)[:limit]
+            pair, grp = pair[top], grp[top]
+        model.in_lp[pair, grp] = True
+        rounds += 1
+        status, out = model.solve(exact)
+    if status == "optimal" and not exact:
+        status, out = model.solve(True)   # same members, solved to a vertex: clean forces
+    if status == "infeasible":
+        raise SolveError("infeasible", "no structure in the ground structure can carry every "
+                         "load case to the supports")
+    if status != "optimal":
+        raise SolveError("solver", f"HiGHS stopped without a proven optimum: {status}")
+    if rounds >= MAX_ROUNDS:
+        log.warning("member adding stopped after %d rounds", rounds)
+    return _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds,
+                   time.perf_counter() - t0, int(model.in_lp.sum()), gap)
+
+
+def _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds, seconds,
+            columns, gap) -> CaseDesign:
+    area_d = out["area"]
+    keep = area_d > 1e-9 * max(float(area_d.max()), 1e-300)
+    pair, grp = out["pair"][keep], out["group"][keep]
+    a, b = data.a[pair], data.b[pair]
+    area = area_d[keep] * ref_force / ref_sigma
+    length = out["length"][keep] * ref_len
+    forces = out["force"][keep] * ref_force
+    groups = data.groups
+    sig_t = np.array([g[1] for g in groups])[grp] * ref_sigma
+    sig_c = np.array([g[2] for g in groups])[grp] * ref_sigma
+    cap = np.where(forces >= 0, sig_t[:, None], sig_c[:, None]) * area[:, None]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        util = np.where(cap > 0, np.abs(forces) / cap, 0.0)
+    loaded = np.nonzero(np.any(f != 0, axis=(0, 2)))[0]
+    used = np.unique(np.concatenate([a, b, loaded, data.fixed // 2]))
+    index = -np.ones(grid.n, dtype=np.int64)
+    index[used] = np.arange(len(used))
+    K = len(study.cases)
+    nfix = len(data.fixed)
+    reactions = np.zeros((K, nfix, 3))
+    reactions[:, :, 0] = index[data.fixed // 2]
+    for k in range(K):
+        reactions[k, np.arange(nfix), 1 + data.fixed % 2] = out["reactions"][k] * ref_force
+    volume = area * length
+    costs = study.costs
+    price = np.ones(len(area))
+    if costs is not None:
+        price = np.where(grp == len(groups) - 1, costs.compression, costs.tension) \
+            if len(groups) > 1 else np.full(len(area), costs.tension)
+    p = study.problem
+    copies = p.copies
+    names = np.array([g[0] for g in groups])[grp]
+    design = CaseDesign(
+        status="optimal",
+        message=("proven optimum of the multi-case layout LP (lumped self-weight)" if gap == 0
+                 else "optimum of the multi-case layout LP (lumped self-weight) within a "
+                 f"proven gap of {gap:.1e}"),
+        volume=copies * float(volume.sum()), cost=copies * float((price * volume).sum()),
+        weight=0.0, nodes=grid.xz[used], start=index[a], end=index[b], group=names,
+        area=area, length=length, member_volume=volume, forces=forces,
+        governing=np.argmax(util, axis=1) if len(area) else np.zeros(0, int),
+        utilisation=util, loads=f[:, used], reactions=reactions,
+        case_names=tuple(c.name for c in study.cases),
+        stats={"rounds": rounds, "seconds": seconds, "columns": columns,
+               "candidates": len(data.a) * len(groups), "grid_nodes": grid.n,
+               "lp_objective": out["objective"], "gap": gap},
+        copies=copies, study=study)
+    weight = copies * float(design.member_weight().sum())
+    worst = max(float(np.abs(design.residual(k)).max()) for k in range(K))
+    stats = dict(design.stats, equilibrium_error=worst / ref_force)
+    return dataclasses.replace(design, weight=weight, stats=stats)
+
+
+def single_case_reference(study: CaseStudy, case: int | None = None):
+    """The single-case reference optimum (equal-strength elements) for one case of ``study``.
+
+    Parameters
+    ----------
+    study : CaseStudy
+    case : int, optional
+        Which case (default: the one with the largest total applied load, the
+        first on a tie).
+
+    Returns
+    -------
+    (int, Design)
+        The case's index and :func:`~bridgeopt.solver.layout.optimize_layout`'s design
+        for that case alone.  A structure for every case is at least about as
+        heavy (exactly at least as heavy when weightless; with self-weight the
+        lumped and equal-strength models differ slightly, see docs/method.md).
+    """
+    from bridgeopt.solver.layout import optimize_layout
+
+    if case is None:
+        totals = [study.total_load(k) for k in range(len(study.cases))]
+        case = int(np.argmax(totals))
+    loads, lines = study.case_loads(case)
+    return case, optimize_layout(dataclasses.replace(study.problem, loads=loads, line_loads=lines))

@@ -1,0 +1,148 @@
+"""Trend studies of the option comparison: against span, allowed rise and pylon count.
+
+Each returns one long :class:`pandas.DataFrame` with the columns of
+:func:`bridgeopt.study.options.compare` plus the swept quantities, in SI units.  A form
+that fails or is not registered at some point gives a row saying so; the sweep
+carries on.  Also available as ``bridgeopt.study.span_sweep`` etc.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from typing import Any, Callable, Iterable, Mapping
+
+from bridgeopt.model.bridge import BridgeScenario
+from bridgeopt.errors import InputError
+from bridgeopt.study.options import REFERENCE, _rows, solve_options
+
+__all__ = ["span_sweep", "height_sweep", "pylon_sweep"]
+
+
+def _sweep(cases, forms, options, progress, extra):
+    """Rows of :func:`compare` for each (bridge, label-dict) in ``cases``."""
+    import pandas as pd
+
+    cases = list(cases)
+    rows = []
+    for i, (bridge, labels) in enumerate(cases):
+        for row in _rows(bridge, solve_options(bridge, forms, options)):
+            rows.append({**labels, **extra(bridge), **row})
+        if progress is not None:
+            progress(i + 1, len(cases))
+    return pd.DataFrame(rows)
+
+
+def _bridge_columns(bridge: BridgeScenario) -> dict:
+    return {"span_m": bridge.span, "rise_m": bridge.rise, "depth_m": bridge.depth,
+            "normalised_span": bridge.normalised_span}
+
+
+def span_sweep(bridge: BridgeScenario, spans: Iterable[float], forms: Iterable[str] = (),
+               options: Mapping[str, Any] | None = None, *, keep_proportions: bool = True,
+               progress: Callable[[int, int], None] | None = None):
+    """:func:`compare` at each span, in one long table.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The base scenario (material, load, arrangement, divisions).
+    spans : iterable of float
+        Spans to solve. [m]
+    forms : iterable of str
+    options : mapping, optional
+    keep_proportions : bool
+        Scale rise and depth with the span (same rise/span and depth/span as
+        ``bridge``); otherwise keep them fixed. [-]
+    progress : callable, optional
+        ``progress(done, total)`` after each span.
+
+    Returns
+    -------
+    pandas.DataFrame
+        :func:`compare`'s columns plus ``span_m`` [m], ``rise_m`` [m],
+        ``depth_m`` [m] and ``normalised_span`` [-] (span / (sigma/(rho g))).
+    """
+    forms = tuple(forms)
+
+    def cases():
+        for s in spans:
+            f = s / bridge.span if keep_proportions else 1.0
+            yield dataclasses.replace(bridge, span=float(s), rise=bridge.rise * f,
+                                      depth=bridge.depth * f), {}
+    return _sweep(cases(), forms, options, progress, _bridge_columns)
+
+
+def height_sweep(bridge: BridgeScenario, rises: Iterable[float], forms: Iterable[str] = (),
+                 options: Mapping[str, Any] | None = None, *,
+                 progress: Callable[[int, int], None] | None = None):
+    """:func:`compare` at each allowed rise above the deck.
+
+    Parameters
+    ----------
+    rises : iterable of float
+        Heights allowed above the deck. [m]
+
+    Returns
+    -------
+    pandas.DataFrame
+        :func:`span_sweep`'s columns plus ``span_to_rise`` [-].  A rise the
+        scenario refuses (below one grid step with no depth) gives a
+        ``"failed"`` row with the message.
+    """
+    forms = tuple(forms)
+    rows = []
+    rises = list(rises)
+    import pandas as pd
+
+    for i, r in enumerate(rises):
+        try:
+            b = dataclasses.replace(bridge, rise=float(r))
+        except InputError as err:
+            for name in (REFERENCE,) + forms:
+                rows.append({**_bridge_columns(bridge), "rise_m": float(r), "option": name,
+                             "status": "failed", "volume_m3": math.nan, "weight_N": math.nan,
+                             "ratio_to_reference": math.nan, "normalised_volume": math.nan,
+                             "seconds": 0.0, "message": f"{name}: {err}"})
+        else:
+            rows += [{**_bridge_columns(b), **row}
+                     for row in _rows(b, solve_options(b, forms, options))]
+        if progress is not None:
+            progress(i + 1, len(rises))
+    df = pd.DataFrame(rows)
+    if len(df):
+        df["span_to_rise"] = df["span_m"] / df["rise_m"].where(df["rise_m"] > 0)
+    return df
+
+
+def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable[int],
+                forms: Iterable[str] = (), options: Mapping[str, Any] | None = None, *,
+                keep_proportions: bool = True,
+                progress: Callable[[int, int], None] | None = None):
+    """:func:`span_sweep` for each pylon count (passed to the forms as ``options["pylons"]``).
+
+    The reference optimum does not depend on the pylon count; its rows are
+    repeated for every count so that each count has its ratio.
+
+    Returns
+    -------
+    pandas.DataFrame
+        :func:`span_sweep`'s columns plus ``pylons`` [-].
+    """
+    import pandas as pd
+
+    pylons = [int(n) for n in pylons]
+    spans = list(spans)
+    total = len(spans) * len(pylons)
+    frames = []
+    for j, n in enumerate(pylons):
+        opts = {**dict(options or {}), "pylons": n}
+
+        def step(done, _total, j=j):
+            if progress is not None:
+                progress(j * len(spans) + done, total)
+        df = span_sweep(bridge, spans, forms, opts, keep_proportions=keep_proportions,
+                        progress=step)
+        df.insert(0, "pylons", n)
+        frames.append(df)
+    return pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
