@@ -41,6 +41,7 @@ from bridgeopt.geometry.optimize import optimize_geometry
 from bridgeopt.solver.ground import build_grid
 from bridgeopt.solver.layout import nodal_loads, optimize_layout, restrained_rows
 from bridgeopt.model.materials import PRESETS, Material
+from bridgeopt.model.plane import crossing_edges, polygon_area
 from bridgeopt.model.problem import MAX_CELLS, Domain, LineLoad, PointLoad, Problem, Support
 
 __all__ = ["SolveOptions", "Scenario", "load_scenario", "parse_scenario", "solve_scenario",
@@ -138,23 +139,6 @@ def _point(field: str, value: object, valid: str = "a pair [x, z] of numbers in 
     return (float(value[0]), float(value[1]))
 
 
-def _segments_cross(p1, p2, p3, p4) -> bool:
-    """True when segments p1-p2 and p3-p4 cross or touch (collinear overlap included)."""
-    def orient(a, b, c):
-        return (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
-
-    def on(a, b, c):  # c on segment a-b, given collinear
-        return (min(a[0], b[0]) <= c[0] <= max(a[0], b[0])
-                and min(a[1], b[1]) <= c[1] <= max(a[1], b[1]))
-
-    d1, d2 = orient(p3, p4, p1), orient(p3, p4, p2)
-    d3, d4 = orient(p1, p2, p3), orient(p1, p2, p4)
-    if ((d1 > 0) != (d2 > 0)) and ((d3 > 0) != (d4 > 0)) and d1 and d2 and d3 and d4:
-        return True
-    return ((d1 == 0 and on(p3, p4, p1)) or (d2 == 0 and on(p3, p4, p2))
-            or (d3 == 0 and on(p1, p2, p3)) or (d4 == 0 and on(p1, p2, p4)))
-
-
 def _polygon(field: str, value: object) -> tuple[tuple[float, float], ...]:
     valid = "a list of at least 3 points [[x, z], ...] in m forming a simple polygon"
     if not isinstance(value, (list, tuple)) or len(value) < 3:
@@ -164,20 +148,15 @@ def _polygon(field: str, value: object) -> tuple[tuple[float, float], ...]:
         pts = pts[:-1]  # a closed ring written out: drop the repeated first point
         if len(pts) < 3:
             raise InputError(field, _short(value), valid)
-    area = 0.5 * sum(x0 * z1 - x1 * z0 for (x0, z0), (x1, z1) in zip(pts, pts[1:] + pts[:1]))
-    if area == 0:
+    if polygon_area(pts) == 0:
         raise InputError(field, _short(value), "a polygon of non-zero area (points in order "
                          "around the boundary, m)")
-    n = len(pts)
-    edges = [(pts[i], pts[(i + 1) % n]) for i in range(n)]
-    for i in range(n):
-        for j in range(i + 2, n):
-            if i == 0 and j == n - 1:
-                continue  # neighbours through the closing vertex
-            if _segments_cross(*edges[i], *edges[j]):
-                raise InputError(field, _short(value),
-                                 f"a simple polygon (edges {i} and {j} cross or touch; "
-                                 "list the points in order around the boundary)")
+    crossing = crossing_edges(pts)
+    if crossing is not None:
+        i, j = crossing
+        raise InputError(field, _short(value),
+                         f"a simple polygon (edges {i} and {j} cross or touch; "
+                         "list the points in order around the boundary)")
     return pts
 
 

@@ -46,7 +46,8 @@ from bridgeopt.solver.design import Design
 from bridgeopt.solver.elements import SENSES
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.frame import Frame, _lp_data, frame_from_design, position_tolerance, size_frame
-from bridgeopt.solver.ground import Grid, members_clear_of_zones, points_in_polygon
+from bridgeopt.model.plane import points_in_polygon
+from bridgeopt.solver.ground import Grid, members_clear_of_zones
 from bridgeopt.solver.layout import scales
 from bridgeopt.solver.lp import column_entries, solve_lp
 from bridgeopt.geometry.sensitivity import linearise

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 
 from bridgeopt.errors import InputError
 from bridgeopt.model.materials import Material
+from bridgeopt.model.plane import polygon_area
 
 __all__ = ["Domain", "Support", "PointLoad", "LineLoad", "Problem"]
 
@@ -43,8 +44,7 @@ def _check_polygon(name: str, value: object) -> tuple[tuple[float, float], ...]:
         raise InputError(name, value, "a list of at least 3 points [x, z] in m") from None
     if len(pts) < 3:
         raise InputError(name, value, "a list of at least 3 points [x, z] in m")
-    area = 0.5 * sum(x0 * z1 - x1 * z0 for (x0, z0), (x1, z1) in zip(pts, pts[1:] + pts[:1]))
-    if abs(area) <= 0:
+    if polygon_area(pts) == 0:
         raise InputError(name, value, "a polygon of non-zero area")
     return pts
 

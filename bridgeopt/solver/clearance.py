@@ -22,7 +22,7 @@ from __future__ import annotations
 import numpy as np
 
 from bridgeopt.solver.elements import centreline, sag
-from bridgeopt.solver.ground import _segments_cross, points_in_polygon
+from bridgeopt.model.plane import points_in_polygon, segments_cross
 
 __all__ = ["SAMPLES", "enters_zones", "curves_entering_zones"]
 
@@ -46,7 +46,7 @@ def enters_zones(curve: np.ndarray, zones, *, tol: float) -> bool:
         if points_in_polygon(mids, zone, boundary=False, tol=tol).any():
             return True
         for ea, eb in zip(zone, np.roll(zone, -1, axis=0)):
-            if _segments_cross(p, q, ea, eb, tol * tol).any():
+            if segments_cross(p, q, ea, eb, eps=tol * tol).any():
                 return True
     return False
 

@@ -15,9 +15,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from bridgeopt.errors import InputError
+from bridgeopt.model.plane import points_in_polygon, segments_cross
 from bridgeopt.model.problem import Problem
 
-__all__ = ["Grid", "build_grid", "candidate_pairs", "points_in_polygon", "members_clear_of_zones"]
+__all__ = ["Grid", "build_grid", "candidate_pairs", "members_clear_of_zones"]
 
 #: Number of node pairs examined per chunk when generating candidates.
 PAIR_CHUNK = 2_000_000
@@ -61,23 +62,6 @@ class Grid:
         return i
 
 
-def points_in_polygon(pts: np.ndarray, poly, *, boundary: bool, tol: float) -> np.ndarray:
-    """Which points lie inside ``poly``; points within ``tol`` of an edge count as ``boundary``."""
-    poly = np.asarray(poly, dtype=float)
-    x, z = pts[:, 0], pts[:, 1]
-    inside = np.zeros(len(pts), dtype=bool)
-    on_edge = np.zeros(len(pts), dtype=bool)
-    for (xa, za), (xb, zb) in zip(poly, np.roll(poly, -1, axis=0)):
-        crosses = (za > z) != (zb > z)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            xc = xa + (z - za) * (xb - xa) / (zb - za)
-        inside ^= crosses & (x < xc)
-        ex, ez = xb - xa, zb - za
-        t = np.clip(((x - xa) * ex + (z - za) * ez) / (ex * ex + ez * ez), 0.0, 1.0)
-        on_edge |= np.hypot(x - xa - t * ex, z - za - t * ez) <= tol
-    return (inside | on_edge) if boundary else (inside & ~on_edge)
-
-
 def build_grid(problem: Problem) -> Grid:
     """Lattice nodes inside ``problem.domain`` and outside its excluded zones."""
     x0, x1, z0, z1 = problem.domain.bounds
@@ -97,22 +81,6 @@ def build_grid(problem: Problem) -> Grid:
     return Grid(xz=xz[keep], ij=ij[keep].astype(np.int64), step=(sx, sz), origin=(x0, z0))
 
 
-def _segments_cross(p, q, a, b, eps: float) -> np.ndarray:
-    """Proper crossing of segments p-q (arrays) with the segment a-b.
-
-    Touching at an end point or running along the edge is not a crossing.
-    ``eps`` is an area tolerance. [m2]
-    """
-    def orient(u, v, w):
-        return ((v[..., 0] - u[..., 0]) * (w[..., 1] - u[..., 1])
-                - (v[..., 1] - u[..., 1]) * (w[..., 0] - u[..., 0]))
-    d1, d2 = orient(a, b, p), orient(a, b, q)
-    d3, d4 = orient(p, q, a), orient(p, q, b)
-    split_pq = ((d1 > eps) & (d2 < -eps)) | ((d1 < -eps) & (d2 > eps))
-    split_ab = ((d3 > eps) & (d4 < -eps)) | ((d3 < -eps) & (d4 > eps))
-    return split_pq & split_ab
-
-
 def members_clear_of_zones(problem: Problem, grid: Grid, a: np.ndarray, b: np.ndarray) -> np.ndarray:
     """Members that stay in the domain and out of every excluded zone."""
     p, q = grid.xz[a], grid.xz[b]
@@ -122,12 +90,12 @@ def members_clear_of_zones(problem: Problem, grid: Grid, a: np.ndarray, b: np.nd
     mid = 0.5 * (p + q)
     outline = np.asarray(problem.domain.outline)
     for ea, eb in zip(outline, np.roll(outline, -1, axis=0)):
-        ok &= ~_segments_cross(p, q, ea, eb, eps)
+        ok &= ~segments_cross(p, q, ea, eb, eps=eps)
     ok &= points_in_polygon(mid, outline, boundary=True, tol=tol)
     for zone in problem.domain.excluded:
         zone = np.asarray(zone, dtype=float)
         for ea, eb in zip(zone, np.roll(zone, -1, axis=0)):
-            ok &= ~_segments_cross(p, q, ea, eb, eps)
+            ok &= ~segments_cross(p, q, ea, eb, eps=eps)
         ok &= ~points_in_polygon(mid, zone, boundary=False, tol=tol)
     return ok
 
