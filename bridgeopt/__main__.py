@@ -1,7 +1,7 @@
-"""``python -m bridgeopt``: the command-line interface (see :mod:`bridgeopt.cli.commands`)."""
+"""``python -m bridgeopt``: the command-line interface (see :mod:`bridgeopt.cli`)."""
 
 import sys
 
-from bridgeopt.cli.commands import main
+from bridgeopt.cli import main
 
 sys.exit(main())

@@ -12,7 +12,7 @@ import pytest
 
 from bridgeopt import PRESETS, optimize_layout
 from bridgeopt.cautions import CAUTION_LINES, CAUTIONS
-from bridgeopt.cli.commands import main
+from bridgeopt.cli import main
 from bridgeopt.model.materials import GRAVITY
 from bridgeopt.files.scenario import load_scenario
 

@@ -15,7 +15,7 @@ from hypothesis import strategies as st
 
 from bridgeopt import BridgeScenario, Design, InputError, Material, PRESETS, SolveError
 from bridgeopt.cautions import CAUTIONS
-from bridgeopt.cli.commands import main
+from bridgeopt.cli import main
 from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, STUDY_FORMS, ArchForm, CableStayedForm,
                              FormResult, ReferenceForm, SuspensionForm, build_form, form_keys,
                              form_problem, parse_form, solve_form)

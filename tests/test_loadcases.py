@@ -16,7 +16,7 @@ import pytest
 
 from bridgeopt import (GRAVITY, PRESETS, BridgeScenario, Domain, InputError, Material,
                        PointLoad, Problem, SolveError, Support, optimize_layout)
-from bridgeopt.cli.commands import main
+from bridgeopt.cli import main
 from bridgeopt.model.crossing import full_span_problem
 from bridgeopt.solver.elements import centreline
 from bridgeopt.model.loads import CaseStudy, LoadCase, UnitCosts, traffic_load

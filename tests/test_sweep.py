@@ -328,7 +328,7 @@ def test_cli_scheduler_option(finished, tmp_path, capsys):
         import distributed
     else:
         distributed = pytest.importorskip("distributed")
-    from bridgeopt.cli.commands import main
+    from bridgeopt.cli import main
 
     path = tmp_path / "options.toml"
     path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = 8")

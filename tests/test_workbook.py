@@ -14,7 +14,7 @@ pytest.importorskip("ipywidgets")
 from bridgeopt import InputError, SolveError  # noqa: E402
 from bridgeopt.workbook import notebook as workbook
 from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
-from bridgeopt.cli.commands import main  # noqa: E402
+from bridgeopt.cli import main  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[1]
 
