@@ -1,0 +1,68 @@
+"""Bad input, one row each: the error names the key, the value and the valid range.
+
+The valid ranges are the project's own (bridgeopt.model.limits, docs/limits.md); each row
+was a case that gave a wrong answer, a raw exception or no error before it was checked.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+
+import numpy as np
+import pytest
+
+from bridgeopt import PRESETS, BridgeScenario, InputError, Material
+
+STEEL = PRESETS["steel"]
+
+
+def _bridge(**changes) -> BridgeScenario:
+    base = dict(span=600.0, rise=150.0, depth=60.0, deck_load=1.8e5, material=STEEL,
+                divisions=20)
+    return BridgeScenario(**{**base, **changes})
+
+
+BAD = [
+    # (what, build, field, value text, valid text)
+    ("huge deck load", lambda: _bridge(deck_load=1e306), "bridge.deck_load", "1e+306",
+     "a number from 1 to 1e+09 N/m"),
+    ("vanishing deck load", lambda: _bridge(deck_load=5e-324), "bridge.deck_load", "5e-324",
+     "a number from 1 to 1e+09 N/m"),
+    ("negative span", lambda: _bridge(span=-5.0), "bridge.span", "-5.0",
+     "a number from 1 to 100000 m"),
+    ("nan span", lambda: _bridge(span=float("nan")), "bridge.span", "nan",
+     "a number from 1 to 100000 m"),
+    ("span beyond 100 km", lambda: _bridge(span=1e400), "bridge.span", "inf",
+     "a number from 1 to 100000 m"),
+    ("rise of many spans", lambda: _bridge(rise=1e7), "bridge.rise", "10000000.0",
+     "a number from 0 to 6000 m (10 spans)"),
+    ("material by name", lambda: _bridge(material="steel"), "material", "'steel'",
+     "a Material, e.g. PRESETS['steel']"),
+    ("no material", lambda: _bridge(material=None), "material", "None", "a Material"),
+    ("feather-light material", lambda: _bridge(material=dataclasses.replace(STEEL, density=1e-300)),
+     "material.density", "1e-300", "0 or a number from"),
+    ("absurd strength", lambda: Material("x", 1e300, 355e6, 7850.0),
+     "material.tension_strength", "1e+300", "a number from 0.001 to 1e+13 Pa"),
+    ("bridge strength beyond practice", lambda: _bridge(material=Material("x", 1e12, 1e12, 7850.0)),
+     "material.tension_strength", "1000000000000.0", "a number from 1e+06 to 1e+11 Pa"),
+    ("odd divisions", lambda: _bridge(divisions=np.int64(21)), "bridge.divisions", "21",
+     "an even whole number from 2 to 240"),
+    ("divisions not whole", lambda: _bridge(divisions=20.0), "bridge.divisions", "20.0",
+     "an even whole number from 2 to 240"),
+]
+
+
+@pytest.mark.parametrize("what,build,field,value,valid", BAD, ids=[b[0] for b in BAD])
+def test_bad_input_names_key_value_and_range(what, build, field, value, valid):
+    with pytest.raises(InputError) as err:
+        build()
+    message = str(err.value)
+    assert err.value.field == field
+    assert message.startswith(f"{field} = ") and value in message and valid in message
+    assert "\n" not in message
+
+
+def test_numpy_scalars_are_plain_numbers_inside():
+    bridge = _bridge(span=np.int64(600), divisions=np.int64(20), deck_load=np.float32(1.8e5))
+    assert type(bridge.span) is float and type(bridge.divisions) is int
+    assert bridge == _bridge(span=600.0, divisions=20, deck_load=float(np.float32(1.8e5)))
