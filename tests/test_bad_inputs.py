@@ -12,6 +12,7 @@ import numpy as np
 import pytest
 
 from bridgeopt import PRESETS, BridgeScenario, InputError, Material
+from bridgeopt.files.scenario import parse_scenario
 
 STEEL = PRESETS["steel"]
 
@@ -22,7 +23,21 @@ def _bridge(**changes) -> BridgeScenario:
     return BridgeScenario(**{**base, **changes})
 
 
+def _channel(outline) -> None:
+    parse_scenario({"name": "Orrin Cut (fictional)", "material": {"preset": "steel"},
+                    "bridge": {"span": 600.0, "rise": 150.0, "depth": 60.0, "deck_load": 1.8e5,
+                               "divisions": 20, "channel": [{"outline": outline}]}})
+
+
 BAD = [
+    ("channel reaching above the deck",
+     lambda: _channel([[60, -70], [540, -70], [540, 5], [60, 5]]), "bridge.channel[0].outline",
+     "[[60.0, -70.0], [540.0, -70.0], [540.0, 5.0], [60.0, 5.0]]",
+     "a polygon below the deck: every point at z <= 0 m (the deck is at z = 0; this one "
+     "reaches z = 5 m)"),
+    ("channel over the abutments",
+     lambda: _channel([[-10, -70], [610, -70], [610, 0], [-10, 0]]), "bridge.channel[0].outline",
+     "[-10.0, -70.0]", "a channel clear of the supports (it covers the support at [0, -60] m)"),
     # (what, build, field, value text, valid text)
     ("huge deck load", lambda: _bridge(deck_load=1e306), "bridge.deck_load", "1e+306",
      "a number from 1 to 1e+09 N/m"),
