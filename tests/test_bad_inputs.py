@@ -81,3 +81,28 @@ def test_numpy_scalars_are_plain_numbers_inside():
     bridge = _bridge(span=np.int64(600), divisions=np.int64(20), deck_load=np.float32(1.8e5))
     assert type(bridge.span) is float and type(bridge.divisions) is int
     assert bridge == _bridge(span=600.0, divisions=20, deck_load=float(np.float32(1.8e5)))
+
+
+@pytest.mark.parametrize("kind", ["device", "fifo", "huge"])
+def test_input_files_that_are_not_plain_small_files_are_refused(tmp_path, kind):
+    """`solve /dev/zero` read until MemoryError and a FIFO blocked for ever."""
+    import os
+
+    from bridgeopt.files.io import MAX_INPUT_BYTES
+    from bridgeopt.files.scenario import load_scenario
+
+    if kind == "device":
+        path, valid = "/dev/zero", "a regular scenario file (.toml) (not a device, pipe or socket)"
+    elif kind == "fifo":
+        path = tmp_path / "pipe.toml"
+        os.mkfifo(path)
+        valid = "a regular scenario file (.toml) (not a device, pipe or socket)"
+    else:
+        path = tmp_path / "big.toml"
+        with open(path, "wb") as fh:
+            fh.truncate(MAX_INPUT_BYTES + 1)
+        valid = "a scenario file (.toml) of at most 32 MiB"
+    with pytest.raises(InputError) as err:
+        load_scenario(path)
+    assert err.value.field == "file" and str(path) in str(err.value)
+    assert valid in str(err.value)

@@ -28,7 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from bridgeopt.errors import InputError
-from bridgeopt.files.io import read_json
+from bridgeopt.files.io import read_input_bytes, read_json
 
 __all__ = ["Proposal", "read_proposal", "proposal_from_dict", "SENSES"]
 
@@ -172,12 +172,14 @@ def proposal_from_dict(data, *, source: str = "<dict>") -> Proposal:
 
 
 def _read_csv(path: Path, required: tuple[str, ...], what: str):
+    import io
+
     import pandas as pd
 
+    data = read_input_bytes(path, f"{what} CSV file")
     try:
-        df = pd.read_csv(path, comment="#", dtype=str, keep_default_na=False)
-    except FileNotFoundError:
-        raise InputError("file", str(path), f"an existing {what} CSV file") from None
+        df = pd.read_csv(io.BytesIO(data), comment="#", dtype=str, keep_default_na=False,
+                         encoding="utf-8")
     except (OSError, UnicodeDecodeError, pd.errors.ParserError,
             pd.errors.EmptyDataError) as err:
         raise InputError("file", str(path), f"a readable {what} CSV file ({err})") from None
