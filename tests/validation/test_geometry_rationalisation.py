@@ -33,8 +33,8 @@ from bridgeopt import PRESETS, BridgeScenario, PointLoad, optimize_layout
 from bridgeopt.solver.frame import frame_from_design
 from bridgeopt.geometry.optimize import default_moves, optimize_geometry
 from helpers import assert_equilibrium
-import test_michell_point_load as michell
-import test_uniform_load_arch as uniform
+from . import test_michell_point_load as michell
+from . import test_uniform_load_arch as uniform
 
 #: Nodes of the rationalised layout, at most this fraction of the raw coarse layout's.
 NODE_FRACTION = 0.4

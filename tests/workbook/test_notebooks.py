@@ -18,7 +18,7 @@ from bridgeopt import PRESETS, BridgeScenario, study  # noqa: E402
 from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
 from bridgeopt.workbook.report import execute_notebook  # noqa: E402
 
-STUDIES = Path(__file__).resolve().parents[1] / "studies"
+STUDIES = Path(__file__).resolve().parents[2] / "studies"
 NOTEBOOKS = sorted(STUDIES.glob("*.ipynb"))
 FAST = {"BRIDGEOPT_FAST": "1"}
 

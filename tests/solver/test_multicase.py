@@ -25,7 +25,7 @@ from bridgeopt.files.scenario import load_scenario, parse_scenario, solve_scenar
 
 from pathlib import Path
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 WEIGHTLESS = PRESETS["weightless-steel"]
 
 

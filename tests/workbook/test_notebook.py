@@ -16,7 +16,7 @@ from bridgeopt.workbook import notebook as workbook
 from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
 from bridgeopt.cli import main  # noqa: E402
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def test_param_reads_typed_environment_overrides(monkeypatch):

@@ -22,7 +22,7 @@ from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, STUDY_FORMS, ArchForm, Ca
 from bridgeopt.files.scenario import parse_scenario
 from helpers import assert_equilibrium
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 STEEL = PRESETS["steel"]
 
 

@@ -22,7 +22,7 @@ pytest.importorskip("plotly")
 from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
 from bridgeopt.workbook.report import remote_references  # noqa: E402
 
-STUDIES = Path(__file__).resolve().parents[1] / "studies"
+STUDIES = Path(__file__).resolve().parents[2] / "studies"
 
 #: notebook -> plotly figures its report shows
 EXPECTED_FIGURES = {"client_report": 2, "explorer": 2}

@@ -16,7 +16,7 @@ from bridgeopt.cli import main
 from bridgeopt.model.materials import GRAVITY
 from bridgeopt.files.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "studies" / "scenarios" / "demo.toml"
 HANGING = ROOT / "studies" / "scenarios" / "hanging_bar.toml"
 

@@ -177,7 +177,7 @@ def test_the_bundled_example_proposal():
 
     from bridgeopt.files.scenario import load_scenario
 
-    root = Path(__file__).resolve().parents[1]
+    root = Path(__file__).resolve().parents[2]
     scenario = load_scenario(root / "studies" / "scenarios" / "form_cable_stayed.toml")
     proposal = read_proposal(root / "studies" / "proposals" / "harrowmere_fan.json")
     judged = judge_proposal(judge_problem(scenario), proposal)
