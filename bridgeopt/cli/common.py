@@ -10,6 +10,7 @@ from pathlib import Path
 from bridgeopt import __version__
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.errors import InputError
+from bridgeopt.files.io import written_by_bridgeopt
 from bridgeopt.files.scenario import Scenario
 from bridgeopt.model.materials import GRAVITY, Material
 from bridgeopt.solver.design import Design
@@ -177,14 +178,20 @@ def format_summary(scenario: Scenario, design: Design, wall_seconds: float | Non
     return "\n".join(lines)
 
 
-def check_json_target(path: str | None) -> Path | None:
-    """Fail before the solve when the JSON cannot be written where asked."""
+def check_json_target(path: str | None, *, force: bool = False) -> Path | None:
+    """Fail before the solve when the JSON cannot be written where asked.
+
+    An existing file is replaced only when bridgeopt wrote it, or with ``force``.
+    """
     if path is None:
         return None
     out = Path(path)
     parent = out.parent if str(out.parent) else Path(".")
     if out.is_dir():
         raise InputError("--json", path, "a file path, not a directory")
+    if out.exists() and not force and not written_by_bridgeopt(out):
+        raise InputError("--json", path, "a new file, or a JSON file bridgeopt wrote (this one "
+                         "exists and is not bridgeopt output; add --force to replace it)")
     if not parent.is_dir():
         raise InputError("--json", path, f"a path in an existing directory ({parent} does not "
                          "exist)")

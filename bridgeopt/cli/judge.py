@@ -27,7 +27,7 @@ def run_judge(args) -> int:
         data.update({"reference_volume": judgement.reference_volume,
                      "volume_ratio": judgement.ratio, "proposal": judgement.proposal.source,
                      "excess": judgement.excess.to_dict(orient="records")})
-        write_json(check_json_target(args.json), data)
+        write_json(check_json_target(args.json, force=args.force), data)
         print(f"JSON written to {args.json}")
     return EXIT_OK
 
@@ -47,4 +47,6 @@ def add_judge(sub) -> None:
     p.add_argument("--top", type=int, default=5, metavar="N",
                    help="members listed by excess (default 5)")
     p.add_argument("--json", metavar="OUT.json", help="also write the sized proposal as JSON")
+    p.add_argument("--force", action="store_true",
+                   help="replace an existing --json file even if bridgeopt did not write it")
     p.set_defaults(func=run_judge)

@@ -16,7 +16,8 @@ from typing import Callable
 
 from bridgeopt.errors import InputError
 
-__all__ = ["read_toml", "read_json", "read_input_bytes", "atomic_write", "MAX_INPUT_BYTES"]
+__all__ = ["read_toml", "read_json", "read_input_bytes", "atomic_write", "MAX_INPUT_BYTES",
+           "written_by_bridgeopt"]
 
 #: Largest input file read (scenario, sweep, design JSON, proposed layout). [bytes]
 MAX_INPUT_BYTES = 32 * 1024 * 1024
@@ -131,3 +132,27 @@ def atomic_write(path: str | os.PathLike, write: Callable[[str], None]) -> Path:
             pass
         raise
     return path
+
+
+def written_by_bridgeopt(path: str | os.PathLike) -> bool:
+    """Whether ``path`` is a JSON file that bridgeopt wrote (its ``schema`` is ours).
+
+    Used before replacing a file: the program replaces only its own output unless the
+    user says ``--force``.
+
+    Parameters
+    ----------
+    path : path-like
+        An existing file.
+
+    Returns
+    -------
+    bool
+    """
+    try:
+        if Path(path).stat().st_size > MAX_INPUT_BYTES:
+            return False
+        data = json.loads(Path(path).read_bytes().decode("utf-8"))
+    except (OSError, UnicodeDecodeError, ValueError):
+        return False
+    return isinstance(data, dict) and str(data.get("schema", "")).startswith("bridgeopt.")
