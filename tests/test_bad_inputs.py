@@ -7,6 +7,7 @@ was a case that gave a wrong answer, a raw exception or no error before it was c
 from __future__ import annotations
 
 import dataclasses
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -106,3 +107,49 @@ def test_input_files_that_are_not_plain_small_files_are_refused(tmp_path, kind):
         load_scenario(path)
     assert err.value.field == "file" and str(path) in str(err.value)
     assert valid in str(err.value)
+
+
+REPORT_PARAMS = [
+    # (--param, valid text the one line must carry)
+    ("span=-5", "span from 1 to 100000 m"),
+    ("span=nan", "span from 1 to 100000 m"),
+    ("span=inf", "span from 1 to 100000 m"),
+    ("span=1e400", "span from 1 to 100000 m"),
+    ("span=60000.5e1", "span from 1 to 100000 m"),
+    ("divisions=2000", "divisions from 0 to 240"),
+    ("divisions=31", "divisions an even whole number"),
+    ("spann=2400", "a parameter of this notebook: span, rise, depth"),
+    ("form=cable-stayed", "form one of 'cable-stayed fan'"),
+    ("span=abc", "span a value like 1800.0"),
+    ("material=unobtainium", "material one of 'steel'"),
+]
+
+
+EXPLORER = Path(__file__).resolve().parents[1] / "studies" / "explorer.ipynb"
+
+
+@pytest.mark.parametrize("item,valid", REPORT_PARAMS, ids=[r[0] for r in REPORT_PARAMS])
+def test_report_parameters_are_checked_before_the_notebook_runs(item, valid):
+    """Each of these exited 0 with an error page, was ignored, or printed colour codes."""
+    from bridgeopt.workbook.params import check_parameters
+
+    name, _, text = item.partition("=")
+    with pytest.raises(InputError) as err:
+        check_parameters(EXPLORER, {name: text})
+    assert str(err.value).startswith(f"--param = '{item}' is invalid") and valid in str(err.value)
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("item", ["span=abc", "spann=2400"])
+def test_report_with_a_bad_parameter_exits_2_with_one_plain_line(tmp_path, item):
+    import subprocess
+    import sys
+
+    out = tmp_path / "r.html"
+    proc = subprocess.run([sys.executable, "-m", "bridgeopt", "report", str(EXPLORER), "-o",
+                           str(out), "--param", item], capture_output=True, text=True,
+                          timeout=120)
+    assert proc.returncode == 2, proc.stderr
+    assert proc.stderr.count("\n") == 1 and "\x1b" not in proc.stderr
+    assert proc.stderr.startswith(f"bridgeopt: error: --param = '{item}' is invalid")
+    assert not out.exists()

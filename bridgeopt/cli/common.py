@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 import os
 import sys
 from pathlib import Path
@@ -23,8 +24,20 @@ __all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EXIT_SOLVE", "say_error", 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT, EXIT_SOLVE = 0, 1, 2, 3
 
 
+#: Terminal colour and cursor codes (a kernel's traceback carries them): never in our lines.
+_ANSI = re.compile(r"\x1b\[[0-9;?]*[ -/]*[@-~]")
+
+
 def say_error(message: str) -> None:
-    print("bridgeopt: error: " + " ".join(str(message).split()), file=sys.stderr)
+    """One line ``bridgeopt: error: ...`` on stderr (white space folded, no colour codes).
+
+    Parameters
+    ----------
+    message : str
+        The error, as one sentence.
+    """
+    text = _ANSI.sub("", str(message))
+    print("bridgeopt: error: " + " ".join(text.split()), file=sys.stderr)
 
 
 def number_text(value: float, digits: int = 5) -> str:
