@@ -37,7 +37,13 @@ def _name(where: str, raw: Mapping, i: int, taken=()) -> str:
 
 def layout_cases(data: Mapping) -> tuple[LoadCase, ...]:
     """``[[load_case]]`` tables of a layout file: each with ``[[load_case.load]]`` and
-    ``[[load_case.line_load]]`` entries (as the top-level ones)."""
+    ``[[load_case.line_load]]`` entries (as the top-level ones).
+
+    Parameters
+    ----------
+    data : mapping
+        The whole file (point loads [N], line loads [N/m], points [m]).
+    """
     out = []
     for i, raw in enumerate(tables("load_case", data.get("load_case"))):
         where = f"load_case[{i}]"
@@ -63,7 +69,15 @@ def layout_cases(data: Mapping) -> tuple[LoadCase, ...]:
 
 
 def bridge_cases(data: Mapping, span: float) -> tuple[LoadCase, ...]:
-    """``[[load_case]]`` tables of a bridge file: a traffic ``pattern`` on the deck."""
+    """``[[load_case]]`` tables of a bridge file: a traffic ``pattern`` on the deck.
+
+    Parameters
+    ----------
+    data : mapping
+        The whole file (intensities [N/m], extents [m]).
+    span : float
+        The bridge's span, the deck's length. [m]
+    """
     out = []
     for i, raw in enumerate(tables("load_case", data.get("load_case"))):
         where = f"load_case[{i}]"
@@ -97,7 +111,15 @@ def bridge_cases(data: Mapping, span: float) -> tuple[LoadCase, ...]:
 
 
 def cost_table(data: Mapping, problem: Problem) -> UnitCosts | None:
-    """The ``[cost]`` table: prices of tension and compression elements."""
+    """The ``[cost]`` table: prices of tension and compression elements.
+
+    Parameters
+    ----------
+    data : mapping
+        The whole file (prices per m3, or per tonne with ``basis = "mass"``).
+    problem : Problem
+        The problem priced (its densities [kg/m3] turn prices per tonne into per m3).
+    """
     if "cost" not in data:
         return None
     raw = table("cost", data["cost"], "a table [cost] with keys " + ", ".join(KEYS["cost"]))
@@ -119,7 +141,13 @@ def cost_table(data: Mapping, problem: Problem) -> UnitCosts | None:
 
 
 def crossing_keys(raw: Mapping) -> tuple[tuple, tuple, tuple]:
-    """``piers``, ``anchorages`` and ``[[bridge.channel]]`` of a ``[bridge]`` table."""
+    """``piers``, ``anchorages`` and ``[[bridge.channel]]`` of a ``[bridge]`` table.
+
+    Parameters
+    ----------
+    raw : mapping
+        The ``[bridge]`` table (pier x [m], anchorage points [m], channel outlines [m]).
+    """
     piers = raw.get("piers", [])
     if not isinstance(piers, (list, tuple)):
         raise InputError("bridge.piers", short(piers), "a list of x-coordinates in m")
@@ -139,7 +167,14 @@ def crossing_keys(raw: Mapping) -> tuple[tuple, tuple, tuple]:
 
 
 def check_cases_on_grid(problem: Problem, cases) -> None:
-    """Every case's loads lie on grid nodes (errors name ``load_case[i]...``)."""
+    """Every case's loads lie on grid nodes (errors name ``load_case[i]...``).
+
+    Parameters
+    ----------
+    problem : Problem
+        The problem whose grid the loads must meet.
+    cases : iterable of LoadCase
+    """
     grid = build_grid(problem)
     for i, case in enumerate(cases):
         if not (case.loads or case.line_loads):
@@ -153,7 +188,15 @@ def check_cases_on_grid(problem: Problem, cases) -> None:
 
 
 def cases_dict(cases, *, bridge: bool) -> list[dict]:
-    """``[[load_case]]`` entries in the file schema (bridge traffic as 'user' extents)."""
+    """``[[load_case]]`` entries in the file schema (bridge traffic as 'user' extents).
+
+    Parameters
+    ----------
+    cases : iterable of LoadCase
+        Loads [N], line loads [N/m], points [m].
+    bridge : bool
+        The cases of a bridge file (traffic on the deck).
+    """
     out = []
     for c in cases:
         d: dict = {"name": c.name}
@@ -171,5 +214,11 @@ def cases_dict(cases, *, bridge: bool) -> list[dict]:
 
 
 def cost_dict(costs: UnitCosts) -> dict:
+    """The ``[cost]`` table in the file schema (prices per m3).
+
+    Parameters
+    ----------
+    costs : UnitCosts
+    """
     return {"tension": costs.tension, "compression": costs.compression, "basis": "volume",
             "currency": costs.currency}
