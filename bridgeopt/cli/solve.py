@@ -15,10 +15,8 @@ from bridgeopt.cli.common import (EXIT_OK, check_json_target, format_inputs, for
                                   row)
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.files.design_json import design_to_dict, write_json
-from bridgeopt.files.scenario import Scenario, load_scenario, solve_scenario
-from bridgeopt.forms import form_problem, solve_form
-from bridgeopt.geometry import optimize_geometry
-from bridgeopt.solver.layout import optimize_layout
+from bridgeopt.files.scenario import Scenario, load_scenario
+from bridgeopt.study.solve import solve_scenario
 
 __all__ = ["demo_path", "solve_design", "add_solve_options", "add_solve", "add_demo",
            "add_check"]
@@ -39,24 +37,18 @@ def demo_path() -> Path:
 
 
 def solve_design(scenario: Scenario, *, geometry_optimization: bool = False):
-    """(scenario, design, form or None): a scenario solved as ``bridgeopt solve`` solves it."""
-    if geometry_optimization:
-        scenario = scenario.with_solve(geometry_optimization=True)
-    # exp(k h) overflows for members far beyond the self-weight reach; their costs are
-    # infinite and the solver drops them, so numpy's overflow warning is only noise here.
-    with np.errstate(over="ignore"):
-        if scenario.form is not None and scenario.form.type != "reference":
-            # a form's free dimensions are always optimized; [solve] geometry_optimization
-            # also rationalises the reference it is compared with
-            reference = None
-            if scenario.solve.geometry_optimization:
-                reference = optimize_geometry(optimize_layout(
-                    form_problem(scenario.bridge, scenario.form),
-                    member_adding=scenario.solve.member_adding, batch=scenario.solve.batch))
-            form = solve_form(scenario.bridge, scenario.form, reference=reference,
-                              member_adding=scenario.solve.member_adding)
-            return scenario, form.design, form
-        return scenario, solve_scenario(scenario), None
+    """(scenario, design, form or None): a scenario solved as ``bridgeopt solve`` solves it.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The scenario read.
+    geometry_optimization : bool
+        ``--geometry-optimization``: rationalise the layout even when the file's
+        ``[solve]`` does not ask for it.
+    """
+    solved = solve_scenario(scenario, geometry_optimization=geometry_optimization or None)
+    return solved.scenario, solved.design, solved.form
 
 
 def solve_and_report(scenario: Scenario, args, t0: float) -> int:

@@ -28,7 +28,7 @@ from bridgeopt.cautions import CAUTION_LINES, CAUTIONS
 from bridgeopt.solver.design import Design
 from bridgeopt.files.io import atomic_write
 from bridgeopt.model.materials import GRAVITY
-from bridgeopt.files.scenario import Scenario, _problem_dict
+from bridgeopt.files.scenario import Scenario, problem_dict
 
 __all__ = ["SCHEMA", "UNITS", "design_to_dict", "scenario_inputs", "write_json", "to_json"]
 
@@ -142,7 +142,7 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
         inputs = scenario.to_dict()
         name, kind, source = scenario.name, scenario.kind, scenario.source
     else:
-        inputs = _problem_dict(problem) if problem is not None else {}
+        inputs = problem_dict(problem) if problem is not None else {}
         name = getattr(problem, "name", "layout problem")
         kind, source = "layout", None
         inputs = {"name": name, **inputs}

@@ -41,30 +41,63 @@ GROUPS = {
     "deck-arch": ("arch rib", "column", "deck", "pier"),
     "through-arch": ("arch rib", "hanger", "deck", "pier"),
 }
-def group_quantities(design: Design, groups=()) -> dict:
-    """Members, volume, weight and largest force per element group, for the whole structure.
+
+
+def group_quantities(design: Design, groups=(), *, by_sense: bool = False) -> dict:
+    """Members, length, volume, weight and largest force per element group (whole structure).
+
+    The one quantities table of the package, in SI units (N, m, m3); a table shown
+    to people converts at display.
+
+    Parameters
+    ----------
+    design : Design
+        A solved design (its members' ``group``, ``sense``, ``volume`` [m3],
+        ``axial_force`` [N] and centreline ``curves`` [m]).
+    groups : iterable of str, optional
+        Groups reported first, in this order, with zeros when they carry nothing;
+        any other group present follows.
+    by_sense : bool
+        One entry per (group, sense) present, keyed by the pair, in sorted order
+        (``groups`` is then not used).
 
     Returns
     -------
     dict
-        ``{group: {"members": int, "volume_m3": float, "weight_N": float,
-        "largest_force_N": float}}``, every group of ``groups`` first (zero when
-        it carries nothing), then any other group present.  Volumes and weights
-        count ``design.copies`` copies of the model; member counts are per model.
+        ``{group: {"members": int, "length_m": float, "volume_m3": float,
+        "weight_N": float, "largest_force_N": float}}`` (keys ``(group, sense)``
+        with ``by_sense``).  Lengths (along the centrelines) [m], volumes [m3] and
+        weights [N] count ``design.copies`` copies of the model; member counts are
+        per model; the largest force [N] is the largest axial force (tension
+        positive).
     """
     m = design.members
     prob = design.problem
-    density = np.where(m.sense == "tension", prob.material.density, prob.compression.density)
-    force = m.axial_force
-    out = {}
-    for g in list(groups) + [g for g in dict.fromkeys(m.group.tolist()) if g not in groups]:
-        sel = m.group == g
-        vol = float(m.volume[sel].sum()) * design.copies
-        out[g] = {"members": int(sel.sum()), "volume_m3": vol,
-                  "weight_N": float((density[sel] * m.volume[sel]).sum()) * GRAVITY
-                  * design.copies,
+    dens_t = prob.material.density if prob is not None else 0.0
+    dens_c = prob.compression.density if prob is not None else 0.0
+    sense = np.asarray(m.sense, dtype=str)
+    group = np.asarray(m.group, dtype=str)
+    volume = np.asarray(m.volume, dtype=float)
+    weight = np.where(sense == "tension", dens_t, dens_c) * volume * GRAVITY
+    length = np.array([_curve_length(c) for c in m.curves], dtype=float)
+    force = np.asarray(m.axial_force, dtype=float)
+    if by_sense:
+        keys = sorted(set(zip(group.tolist(), sense.tolist())))
+        selections = [(k, (group == k[0]) & (sense == k[1])) for k in keys]
+    else:
+        names = list(groups) + [g for g in dict.fromkeys(group.tolist()) if g not in groups]
+        selections = [(g, group == g) for g in names]
+    c = design.copies
+    return {key: {"members": int(sel.sum()), "length_m": float(length[sel].sum()) * c,
+                  "volume_m3": float(volume[sel].sum()) * c,
+                  "weight_N": float(weight[sel].sum()) * c,
                   "largest_force_N": float(force[sel].max()) if sel.any() else 0.0}
-    return out
+            for key, sel in selections}
+
+
+def _curve_length(curve: np.ndarray) -> float:
+    """Length of a polyline. [m]"""
+    return float(np.hypot(*np.diff(curve, axis=0).T).sum()) if len(curve) > 1 else 0.0
 
 
 def _geometry(design: Design, form_type: str, deck_z: float) -> dict:

@@ -1,20 +1,18 @@
 """Option studies: the reference optimum against practical bridge forms, and sweeps.
 
-A *form* (cable-stayed, suspension, arch ...) is any function registered here
-under a name::
+A *form* (cable-stayed, suspension, arch ...) is any function registered under a
+name in the registry of :mod:`bridgeopt.forms.registry`::
 
     from bridgeopt import study
     study.register_form("suspension", solve_suspension)
 
-with the signature ``solve(bridge: BridgeScenario, options: Mapping) -> Design``.
-``options`` carries the study's choices for that form, for example
-``{"pylons": 2}``; a solver ignores the keys it does not use.  The returned
-:class:`~bridgeopt.solver.design.Design` labels its members in ``members.group``
-("stay", "pylon", "deck", "cable", "hanger", "tower", "arch rib" ...).  A
-solver raises :class:`~bridgeopt.errors.SolveError` or
-:class:`~bridgeopt.errors.InputError` when the form cannot be built; the
-study then reports the option as ``"failed"`` with the message and carries on.
-A name that is asked for but not registered is reported as ``"unavailable"``.
+with the signature ``solve(bridge: BridgeScenario, options: Mapping) -> Design``
+(``options`` carries the study's choices for that form, for example
+``{"pylons": 2}``).  A solver that raises :class:`~bridgeopt.errors.SolveError`
+or :class:`~bridgeopt.errors.InputError` makes the option ``"failed"`` with the
+message, and the study carries on.  A name that is asked for but not
+registered is reported as ``"unavailable"``.  The reference optimum is solved by
+:func:`bridgeopt.study.solve.solve_scenario`.
 
 Every table here is a :class:`pandas.DataFrame` in SI units, the unit in each
 column name.  Nothing here draws (see :mod:`bridgeopt.workbook.plots`).
@@ -27,86 +25,23 @@ import math
 import time
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import Any, Callable, Iterable, Mapping
+from typing import Any, Iterable, Mapping
 
 import numpy as np
 
+from bridgeopt.errors import InputError, SolveError
+from bridgeopt.files.scenario import Scenario, load_scenario
+from bridgeopt.forms.registry import (FORM_SOLVERS, KNOWN_FORMS, REFERENCE, FormSolver,
+                                      available_forms, register_form, unregister_form)
+from bridgeopt.forms.solve import group_quantities
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
-from bridgeopt.errors import InputError, SolveError
-from bridgeopt.solver.layout import optimize_layout
-from bridgeopt.model.materials import GRAVITY
+from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_scenario
 
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
            "unregister_form", "available_forms", "solve_reference", "solve_option",
-           "solve_options", "compare",
-           "quantities", "STATUSES", "comparison_table", "inputs_table",
-           "bridge_from_file"]
-
-#: Name of the reference optimum in every table.
-REFERENCE = "reference optimum"
-
-#: Forms the workbook offers (solvers are registered by :mod:`bridgeopt.forms` when present).
-KNOWN_FORMS = ("cable-stayed fan", "cable-stayed semi-fan", "cable-stayed harp", "suspension",
-               "arch")
-
-#: Statuses of an option: solved, not registered, or the solve raised.
-STATUSES = ("optimal", "unavailable", "failed")
-
-FormSolver = Callable[[BridgeScenario, Mapping[str, Any]], Design]
-
-#: Registered form solvers, by name.
-FORM_SOLVERS: dict[str, FormSolver] = {}
-
-
-def register_form(name: str, solver: FormSolver) -> FormSolver:
-    """Register ``solver`` under ``name`` (replacing any earlier one); return it.
-
-    Parameters
-    ----------
-    name : str
-        Name shown in pickers and tables, e.g. ``"suspension"``.
-    solver : callable
-        ``solver(bridge, options) -> Design``; raises ``SolveError`` or
-        ``InputError`` when the form cannot be built.
-    """
-    if not isinstance(name, str) or not name.strip() or name == REFERENCE:
-        raise InputError("form", name, f"a non-empty name other than {REFERENCE!r}")
-    if not callable(solver):
-        raise InputError(f"form[{name!r}]", solver, "a callable solver(bridge, options)")
-    _load_forms()
-    FORM_SOLVERS[name] = solver
-    return solver
-
-
-def unregister_form(name: str) -> None:
-    """Remove the form ``name`` from the registry (no error if absent)."""
-    _load_forms()
-    FORM_SOLVERS.pop(name, None)
-
-
-def _load_forms() -> None:
-    """Register the solvers of :mod:`bridgeopt.forms` under the study's form names, once.
-
-    Registering or removing a name loads them first, so a later load never undoes it.
-    """
-    if _FORMS_LOADED:
-        return
-    _FORMS_LOADED.append(True)
-    from bridgeopt.forms import STUDY_FORMS
-
-    for name, solver in STUDY_FORMS.items():
-        FORM_SOLVERS[name] = solver
-
-
-_FORMS_LOADED: list[bool] = []
-
-
-def available_forms() -> tuple[str, ...]:
-    """Known forms first (in :data:`KNOWN_FORMS` order), then any other registered names."""
-    _load_forms()
-    extra = tuple(n for n in FORM_SOLVERS if n not in KNOWN_FORMS)
-    return KNOWN_FORMS + extra
+           "solve_options", "compare", "quantities", "STATUSES", "comparison_table",
+           "comparison_rows", "inputs_table", "bridge_from_file"]
 
 
 @dataclass(frozen=True)
@@ -132,7 +67,7 @@ class Option:
     seconds: float = 0.0
 
 
-def _quiet_solve(fn, *args) -> Design:
+def _quiet_solve(fn, *args):
     # exp(k h) overflows for members far beyond the self-weight reach; the solver drops
     # them (infinite cost), so numpy's overflow warning is only noise.
     with np.errstate(over="ignore"):
@@ -147,7 +82,7 @@ def solve_reference(bridge: BridgeScenario) -> Design:
     ------
     SolveError, InputError
     """
-    return _quiet_solve(lambda b: optimize_layout(b.to_problem()), bridge)
+    return solve_scenario(Scenario(name=bridge.name, bridge=bridge)).design
 
 
 def solve_option(bridge: BridgeScenario, name: str,
@@ -162,7 +97,6 @@ def solve_option(bridge: BridgeScenario, name: str,
     options : mapping, optional
         Passed to the form's solver (e.g. ``{"pylons": 2}``).
     """
-    _load_forms()
     t0 = time.perf_counter()
     if name == REFERENCE:
         fn = solve_reference
@@ -175,11 +109,11 @@ def solve_option(bridge: BridgeScenario, name: str,
                       "(no solver registered)")
     try:
         design = _quiet_solve(fn, *args)
-    except SolveError as err:
-        return Option(name, "failed", None, f"{name}: solve failed ({err.status}): {err.message}",
+    except (SolveError, InputError) as err:
+        message = (f"{name}: solve failed ({err.status}): {err.message}"
+                   if isinstance(err, SolveError) else f"{name}: {err}")
+        return Option(name, OPTION_STATUS[case_status(err)], None, message,
                       time.perf_counter() - t0)
-    except InputError as err:
-        return Option(name, "failed", None, f"{name}: {err}", time.perf_counter() - t0)
     return Option(name, "optimal", design, design.message, time.perf_counter() - t0)
 
 
@@ -194,7 +128,7 @@ def comparison_table(bridge: BridgeScenario, results: Mapping[str, Option]):
     """:func:`compare`'s table from already solved options (see :func:`solve_options`)."""
     import pandas as pd
 
-    return pd.DataFrame(_rows(bridge, results))
+    return pd.DataFrame(comparison_rows(bridge, results))
 
 
 def bridge_from_file(path, *, divisions: int | None = None) -> BridgeScenario:
@@ -211,8 +145,6 @@ def bridge_from_file(path, *, divisions: int | None = None) -> BridgeScenario:
     InputError
         The file is not a bridge scenario, or a value in it is invalid.
     """
-    from bridgeopt.files.scenario import load_scenario
-
     scenario = load_scenario(path)
     if scenario.bridge is None:
         raise InputError("bridge", str(path), "a scenario file with a [bridge] table")
@@ -247,12 +179,21 @@ def inputs_table(bridge: BridgeScenario):
 def _reference_volume_on(problem) -> float:
     """Reference optimum on the bridge's domain with a form's own supports. [m3]"""
     try:
-        return _quiet_solve(optimize_layout, problem).volume
+        return solve_scenario(Scenario(name=problem.name, layout=problem)).design.volume
     except (SolveError, InputError):
         return math.nan
 
 
-def _rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> list[dict]:
+def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> list[dict]:
+    """The rows of :func:`compare`'s table for already solved options.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The scenario the options were solved for.
+    results : mapping
+        :class:`Option` by name (see :func:`solve_options`).
+    """
     ref = results.get(REFERENCE)
     ref_volume = ref.design.volume if ref is not None and ref.design is not None else math.nan
     ref_problem = ref.design.problem if ref is not None and ref.design is not None else None
@@ -296,46 +237,33 @@ def compare(bridge: BridgeScenario, forms: Iterable[str] = (),
     """
     import pandas as pd
 
-    return pd.DataFrame(_rows(bridge, solve_options(bridge, forms, options)))
-
-
-def _curve_length(curve: np.ndarray) -> float:
-    return float(np.hypot(*np.diff(curve, axis=0).T).sum()) if len(curve) > 1 else 0.0
+    return pd.DataFrame(comparison_rows(bridge, solve_options(bridge, forms, options)))
 
 
 def quantities(design: Design):
     """Per-group and per-sense quantities of a design (whole reported structure).
 
+    A table of :func:`~bridgeopt.forms.solve.group_quantities` by group and sense.
+
+    Parameters
+    ----------
+    design : Design
+
     Returns
     -------
     pandas.DataFrame
         One row per (group, sense) and a ``total`` row: ``members`` (in the
-        modelled part) [-],
-        ``length_m`` (along the centrelines) [m], ``volume_m3`` [m3],
-        ``weight_kN`` [kN], ``max_force_MN`` [MN].  Lengths, volumes and
-        weights are multiplied by ``design.copies``.
+        modelled part) [-], ``length_m`` (along the centrelines) [m],
+        ``volume_m3`` [m3], ``weight_N`` [N], ``largest_force_N`` [N].  Lengths,
+        volumes and weights are multiplied by ``design.copies``.
     """
     import pandas as pd
 
-    m = design.members
-    prob = design.problem
-    dens_t = prob.material.density if prob is not None else 0.0
-    comp = getattr(prob, "compression_material", None) or getattr(prob, "material", None)
-    dens_c = comp.density if comp is not None else 0.0
-    sense = np.asarray(m.sense, dtype=str)
-    density = np.where(sense == "tension", dens_t, dens_c)
-    df = pd.DataFrame({
-        "group": np.asarray(m.group, dtype=str), "sense": sense,
-        "members": 1,
-        "length_m": [design.copies * _curve_length(c) for c in m.curves],
-        "volume_m3": design.copies * np.asarray(m.volume),
-        "weight_kN": design.copies * density * GRAVITY * np.asarray(m.volume) / 1e3,
-        "max_force_MN": m.axial_force / 1e6,
-    })
-    out = df.groupby(["group", "sense"], as_index=False).agg(
-        members=("members", "sum"), length_m=("length_m", "sum"), volume_m3=("volume_m3", "sum"),
-        weight_kN=("weight_kN", "sum"), max_force_MN=("max_force_MN", "max"))
+    rows = [{"group": g, "sense": sense, **q}
+            for (g, sense), q in group_quantities(design, by_sense=True).items()]
+    out = pd.DataFrame(rows, columns=["group", "sense", "members", "length_m", "volume_m3",
+                                      "weight_N", "largest_force_N"])
     total = {"group": "total", "sense": "", "members": int(out["members"].sum()),
              "length_m": out["length_m"].sum(), "volume_m3": out["volume_m3"].sum(),
-             "weight_kN": out["weight_kN"].sum(), "max_force_MN": out["max_force_MN"].max()}
+             "weight_N": out["weight_N"].sum(), "largest_force_N": out["largest_force_N"].max()}
     return pd.concat([out, pd.DataFrame([total])], ignore_index=True)

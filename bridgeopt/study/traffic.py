@@ -6,8 +6,10 @@ from __future__ import annotations
 from functools import lru_cache
 
 from bridgeopt.errors import InputError
+from bridgeopt.files.scenario import Scenario, parse_scenario
 from bridgeopt.model.bridge import BridgeScenario
-from bridgeopt.study.options import _quiet_solve
+from bridgeopt.solver.multicase import single_case_reference
+from bridgeopt.study.solve import solve_scenario
 
 __all__ = ["TRAFFIC", "TRAFFIC_DIVISIONS", "solve_traffic"]
 
@@ -49,9 +51,6 @@ def solve_traffic(bridge: BridgeScenario, traffic: str, intensity: float):
     ------
     InputError, SolveError
     """
-    from bridgeopt.solver.multicase import single_case_reference
-    from bridgeopt.files.scenario import Scenario, parse_scenario, solve_scenario
-
     if traffic not in TRAFFIC or not TRAFFIC[traffic]:
         raise InputError("traffic", traffic, "one of " + ", ".join(
             repr(k) for k in TRAFFIC if TRAFFIC[k]))
@@ -59,7 +58,7 @@ def solve_traffic(bridge: BridgeScenario, traffic: str, intensity: float):
     data["bridge"]["divisions"] = min(bridge.divisions, TRAFFIC_DIVISIONS)
     data["load_case"] = [{**case, "intensity": float(intensity)} for case in TRAFFIC[traffic]]
     scenario = parse_scenario(data)
-    design = _quiet_solve(solve_scenario, scenario)
+    design = solve_scenario(scenario).design
     _, single = single_case_reference(scenario.study)
     return design, single
 

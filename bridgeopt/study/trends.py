@@ -14,7 +14,7 @@ from typing import Any, Callable, Iterable, Mapping
 
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.errors import InputError
-from bridgeopt.study.options import REFERENCE, _rows, solve_options
+from bridgeopt.study.options import REFERENCE, comparison_rows, solve_options
 
 __all__ = ["span_sweep", "height_sweep", "pylon_sweep"]
 
@@ -26,7 +26,7 @@ def _sweep(cases, forms, options, progress, extra):
     cases = list(cases)
     rows = []
     for i, (bridge, labels) in enumerate(cases):
-        for row in _rows(bridge, solve_options(bridge, forms, options)):
+        for row in comparison_rows(bridge, solve_options(bridge, forms, options)):
             rows.append({**labels, **extra(bridge), **row})
         if progress is not None:
             progress(i + 1, len(cases))
@@ -106,7 +106,7 @@ def height_sweep(bridge: BridgeScenario, rises: Iterable[float], forms: Iterable
                              "seconds": 0.0, "message": f"{name}: {err}"})
         else:
             rows += [{**_bridge_columns(b), **row}
-                     for row in _rows(b, solve_options(b, forms, options))]
+                     for row in comparison_rows(b, solve_options(b, forms, options))]
         if progress is not None:
             progress(i + 1, len(rises))
     df = pd.DataFrame(rows)

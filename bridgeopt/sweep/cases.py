@@ -14,20 +14,19 @@ from typing import Any
 
 import numpy as np
 
+from bridgeopt.errors import SolveError
+from bridgeopt.files.scenario import Scenario, parse_scenario
+from bridgeopt.forms import FormResult, ReferenceForm, form_problem
 from bridgeopt.solver.design import Design
-from bridgeopt.errors import InputError, SolveError
-from bridgeopt.forms import FormResult, ReferenceForm, form_problem, solve_form
-from bridgeopt.geometry.optimize import optimize_geometry
-from bridgeopt.solver.layout import optimize_layout
 from bridgeopt.solver.multicase import single_case_reference
-from bridgeopt.files.scenario import Scenario, parse_scenario, solve_scenario
+from bridgeopt.study.solve import CASE_STATUSES, case_status, form_reference, solve_scenario
 
 __all__ = ["RESULT_COLUMNS", "STATUSES", "solve_case", "solve_reference", "reference_group",
            "error_row"]
 
 #: Columns every row has after the inputs, with their units.
 RESULT_COLUMNS = {
-    "status": "ok, input-error, solve-failed or error",
+    "status": ", ".join(CASE_STATUSES[:-1]) + " or " + CASE_STATUSES[-1],
     "error": "the error message of a bad case (empty when ok)",
     "volume_m3": "material volume of the design, whole structure [m3]",
     "reference_volume_m3": "volume of the reference optimum on the same problem [m3]",
@@ -39,7 +38,8 @@ RESULT_COLUMNS = {
 }
 #: Main dimensions of a solved form, as extra columns [m].
 DIMENSIONS = ("pylon_height", "tower_height", "sag", "rise", "deck_panel")
-STATUSES = ("ok", "input-error", "solve-failed", "error")
+#: Statuses of a case's row (defined with the solve, :data:`bridgeopt.study.solve.CASE_STATUSES`).
+STATUSES = CASE_STATUSES
 
 
 def error_row(status: str, message: str, seconds: float = 0.0) -> dict[str, Any]:
@@ -68,15 +68,7 @@ def reference_group(scenario: Scenario):
 def solve_reference(data: dict) -> tuple[Design | None, str]:
     """The reference optimum of a case's form problem (shared by a group); (design, error)."""
     try:
-        scenario = parse_scenario(data)
-        spec = scenario.form or ReferenceForm()
-        with np.errstate(over="ignore"):
-            design = optimize_layout(form_problem(scenario.bridge, spec),
-                                     member_adding=scenario.solve.member_adding,
-                                     batch=scenario.solve.batch)
-            if scenario.solve.geometry_optimization:
-                design = optimize_geometry(design)
-        return design, ""
+        return form_reference(parse_scenario(data)), ""
     except Exception as err:  # the forms then solve (and fail on) their own reference
         return None, f"{type(err).__name__}: {err}"
 
@@ -131,20 +123,21 @@ def solve_case(data: dict, reference: Design | None = None) -> tuple[dict, Desig
     t0 = time.perf_counter()
     try:
         scenario = parse_scenario(data)
+        solved = solve_scenario(scenario, reference=reference)
+        if solved.form is not None:
+            return _ok_row(scenario, solved.design, solved.form.reference_volume,
+                           time.perf_counter() - t0, solved.form), None
         with np.errstate(over="ignore"):
-            if scenario.form is not None and scenario.form.type != "reference":
-                form = solve_form(scenario.bridge, scenario.form, reference=reference,
-                                  member_adding=scenario.solve.member_adding)
-                return _ok_row(scenario, form.design, form.reference_volume,
-                               time.perf_counter() - t0, form), None
-            design = solve_scenario(scenario)
             if scenario.study is not None:
-                return _case_row(scenario, design, time.perf_counter() - t0), None
+                return _case_row(scenario, solved.design, time.perf_counter() - t0), None
+        design = solved.design
         return _ok_row(scenario, design, design.volume, time.perf_counter() - t0, None), design
-    except InputError as err:
-        return error_row("input-error", str(err), time.perf_counter() - t0), None
-    except SolveError as err:
-        return error_row("solve-failed", f"{err.status}: {err.message}",
-                         time.perf_counter() - t0), None
     except Exception as err:  # recorded, never stops the sweep
-        return error_row("error", f"{type(err).__name__}: {err}", time.perf_counter() - t0), None
+        status = case_status(err)
+        if isinstance(err, SolveError):
+            message = f"{err.status}: {err.message}"
+        elif status == "input-error":
+            message = str(err)
+        else:
+            message = f"{type(err).__name__}: {err}"
+        return error_row(status, message, time.perf_counter() - t0), None

@@ -222,9 +222,13 @@ class Explorer:
             {"volume_m3": "{:,.5g}", "weight_N": "{:,.5g}", "ratio_to_reference": "{:.3g}"},
             na_rep="-").hide(axis="index")]
         for name, q in self.quantities.items():
-            out += [HTML(f"<b>Quantities: {name}</b>"), q.style.format(
+            # the data are in N; shown in kN and MN
+            shown = q.assign(weight_N=q["weight_N"] / 1e3,
+                             largest_force_N=q["largest_force_N"] / 1e6).rename(
+                columns={"weight_N": "weight_kN", "largest_force_N": "largest_force_MN"})
+            out += [HTML(f"<b>Quantities: {name}</b>"), shown.style.format(
                 {"length_m": "{:,.0f}", "volume_m3": "{:,.5g}", "weight_kN": "{:,.5g}",
-                 "max_force_MN": "{:,.4g}"}).hide(axis="index")]
+                 "largest_force_MN": "{:,.4g}"}).hide(axis="index")]
         return out
 
     def _changed(self, _change) -> None:

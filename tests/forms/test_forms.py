@@ -16,9 +16,9 @@ from hypothesis import strategies as st
 from bridgeopt import BridgeScenario, Design, InputError, Material, PRESETS, SolveError
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.cli import main
-from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, STUDY_FORMS, ArchForm, CableStayedForm,
+from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, ArchForm, CableStayedForm,
                              FormResult, ReferenceForm, SuspensionForm, build_form, form_keys,
-                             form_problem, parse_form, solve_form)
+                             form_problem, form_solver, parse_form, solve_form)
 from bridgeopt.files.scenario import parse_scenario
 from helpers import assert_equilibrium
 
@@ -267,25 +267,25 @@ def test_reference_form_is_the_reference():
 
 
 def test_form_solvers_for_a_study_return_designs():
-    d = FORM_SOLVERS["suspension"](bridge(), {"sag_ratio": 0.1})
+    d = form_solver("suspension", strict=True)(bridge(), {"sag_ratio": 0.1})
     assert isinstance(d, Design) and set(np.unique(d.members.group)) >= {"cable", "hanger"}
-    assert_input_error(lambda: FORM_SOLVERS["arch"](bridge(), {"type": "suspension"}),
+    assert_input_error(lambda: form_solver("arch", strict=True)(bridge(), {"type": "suspension"}),
                        "form.type", "'arch' for this solver")
 
 
 def test_study_solvers_ignore_other_forms_keys():
     options = {"pylons": 2, "sag_ratio": 0.1, "rise_ratio": 0.15, "pattern": "fan"}
-    harp = STUDY_FORMS["cable-stayed harp"](bridge(), options)
+    harp = FORM_SOLVERS["cable-stayed harp"](bridge(), options)
     assert (harp.members.group == "pier").sum() == 2          # pylons = 2 was used
     stays = harp.members.group == "stay"
     tops = np.maximum(harp.nodes[harp.members.start[stays], 1],
                       harp.nodes[harp.members.end[stays], 1])
     assert len(np.unique(np.round(tops, 6))) > 1              # harp, not the fan asked in options
-    arch = STUDY_FORMS["arch"](bridge(), options)
+    arch = FORM_SOLVERS["arch"](bridge(), options)
     rib = arch.members.group == "arch rib"
     z = arch.nodes[np.concatenate([arch.members.start[rib], arch.members.end[rib]]), 1]
     assert np.ptp(z) == pytest.approx(0.15 * 600.0)
-    assert set(STUDY_FORMS) >= {"cable-stayed fan", "cable-stayed semi-fan", "suspension"}
+    assert set(FORM_SOLVERS) >= {"cable-stayed fan", "cable-stayed semi-fan", "suspension"}
 
 
 # ---------------------------------------------------------------- lower bound, optimization

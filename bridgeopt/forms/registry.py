@@ -1,0 +1,117 @@
+"""The one registry of bridge forms an option study offers, by name.
+
+A *form solver* is any function ``solve(bridge, options) -> Design``:
+``options`` carries a study's choices for the form (for example
+``{"pylons": 2}``; a solver ignores the keys it does not use), and the returned
+:class:`~bridgeopt.solver.design.Design` labels its members in
+``members.group`` ("stay", "pylon", "deck", "cable", "hanger", "tower",
+"arch rib" ...).  A solver raises :class:`~bridgeopt.errors.SolveError` or
+:class:`~bridgeopt.errors.InputError` when the form cannot be built.
+
+:data:`FORM_SOLVERS` holds the package's forms under the names of
+:data:`KNOWN_FORMS` at import; :func:`register_form` adds or replaces one,
+:func:`unregister_form` removes one (``bridgeopt.study`` offers both).
+"""
+
+from __future__ import annotations
+
+from typing import Any, Callable, Mapping
+
+from bridgeopt.errors import InputError
+from bridgeopt.forms.solve import solve_form
+from bridgeopt.forms.specs import form_keys, parse_form
+from bridgeopt.model.bridge import BridgeScenario
+from bridgeopt.solver.design import Design
+
+__all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "form_solver",
+           "register_form", "unregister_form", "available_forms"]
+
+#: Name of the reference optimum in every study table (not a form name).
+REFERENCE = "reference optimum"
+
+FormSolver = Callable[[BridgeScenario, Mapping[str, Any]], Design]
+
+#: The package's forms by study name: (form type, fixed ``[form]`` keys).
+_PACKAGE_FORMS = {
+    "cable-stayed fan": ("cable-stayed", {"pattern": "fan"}),
+    "cable-stayed semi-fan": ("cable-stayed", {"pattern": "semi-fan"}),
+    "cable-stayed harp": ("cable-stayed", {"pattern": "harp"}),
+    "suspension": ("suspension", {}),
+    "arch": ("arch", {}),
+}
+
+#: Forms the workbook offers (in its pickers even when a name is unregistered).
+KNOWN_FORMS = tuple(_PACKAGE_FORMS)
+
+
+def form_solver(form_type: str, *, strict: bool = False, **fixed) -> FormSolver:
+    """A ``solve(bridge, options) -> Design`` for one form type.
+
+    Parameters
+    ----------
+    form_type : str
+        A :data:`~bridgeopt.forms.specs.FORM_TYPES` entry, e.g. ``"suspension"``.
+    strict : bool
+        Every key of ``options`` must be the form's, as in a ``[form]`` table (a
+        ``type`` key must be ``form_type``), and the reference is solved too.
+        Otherwise (for a study, which passes the same options to every form) keys
+        the form does not have are ignored and only the form is solved; its
+        design's ``problem`` is :func:`~bridgeopt.forms.form_problem`, on which a
+        fair reference is solved.
+    **fixed
+        ``[form]`` keys that override the options (e.g. ``pattern="harp"``).
+    """
+    keys = set(form_keys(form_type)) - {"type"}
+
+    def solve(bridge: BridgeScenario, options: Mapping) -> Design:
+        """Solve this form for ``bridge`` with ``[form]`` keys ``options``; the form's Design."""
+        if strict:
+            table = dict(options)
+            if table.setdefault("type", form_type) != form_type:
+                raise InputError("form.type", table["type"], f"{form_type!r} for this solver")
+            table.update(fixed)
+            return solve_form(bridge, parse_form(table)).design
+        table = {k: v for k, v in dict(options).items() if k in keys}
+        table.update(fixed, type=form_type)
+        return solve_form(bridge, parse_form(table), compare=False).design
+    solve.__name__ = "solve_" + "_".join([form_type, *map(str, fixed.values())]).replace("-", "_")
+    return solve
+
+
+#: Registered form solvers, by name: the package's forms, then any registered.
+FORM_SOLVERS: dict[str, FormSolver] = {
+    name: form_solver(form_type, **fixed) for name, (form_type, fixed) in _PACKAGE_FORMS.items()}
+
+
+def register_form(name: str, solver: FormSolver) -> FormSolver:
+    """Register ``solver`` under ``name`` (replacing any earlier one); return it.
+
+    Parameters
+    ----------
+    name : str
+        Name shown in pickers and tables, e.g. ``"suspension"``.
+    solver : callable
+        ``solver(bridge, options) -> Design``; raises ``SolveError`` or
+        ``InputError`` when the form cannot be built.
+    """
+    if not isinstance(name, str) or not name.strip() or name == REFERENCE:
+        raise InputError("form", name, f"a non-empty name other than {REFERENCE!r}")
+    if not callable(solver):
+        raise InputError(f"form[{name!r}]", solver, "a callable solver(bridge, options)")
+    FORM_SOLVERS[name] = solver
+    return solver
+
+
+def unregister_form(name: str) -> None:
+    """Remove the form ``name`` from the registry (no error if absent).
+
+    Parameters
+    ----------
+    name : str
+    """
+    FORM_SOLVERS.pop(name, None)
+
+
+def available_forms() -> tuple[str, ...]:
+    """Known forms first (in :data:`KNOWN_FORMS` order), then any other registered names."""
+    return KNOWN_FORMS + tuple(n for n in FORM_SOLVERS if n not in KNOWN_FORMS)
