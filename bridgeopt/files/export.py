@@ -214,8 +214,31 @@ def design_from_dict(data: dict) -> Design:
             "bridgeopt.design/"):
         raise InputError("design", "not a design", "the JSON of a solve (schema "
                          "bridgeopt.design/1, written by bridgeopt solve --json or export)")
+    try:
+        return _design_from_dict(data)
+    except InputError:
+        raise
+    except KeyError as err:
+        raise InputError(f"design JSON key {err.args[0]!r}", "<missing>", "present, as "
+                         "bridgeopt wrote it (the file was edited or cut short)") from None
+    except (TypeError, ValueError, IndexError, AttributeError) as err:
+        raise InputError("design JSON", "not as bridgeopt wrote it", "the JSON of a solve, "
+                         f"unedited ({type(err).__name__}: {err})") from None
+
+
+def _design_from_dict(data: dict) -> Design:
     nodes = np.array([[n["x"], n["z"]] for n in data["nodes"]], dtype=float).reshape(-1, 2)
+    bad = np.nonzero(~np.isfinite(nodes).all(axis=1))[0]
+    if len(bad):
+        i = int(bad[0])
+        raise InputError(f"design JSON nodes[{i}]", data["nodes"][i], "finite x and z in m")
     ms = data["members"]
+    for i, m in enumerate(ms):
+        for end in ("start", "end"):
+            v = m[end]
+            if isinstance(v, bool) or not isinstance(v, int) or not 0 <= v < len(nodes):
+                raise InputError(f"design JSON members[{i}].{end}", v,
+                                 f"a node index from 0 to {len(nodes) - 1}")
     members = Members(
         start=np.array([m["start"] for m in ms], dtype=np.int64),
         end=np.array([m["end"] for m in ms], dtype=np.int64),

@@ -54,3 +54,25 @@ def test_a_failed_write_leaves_the_folder_as_it_was(design, tmp_path, monkeypatc
         export_design(other, tmp_path)   # another design: its CSV and SVG would differ
     after = {p.name: p.read_bytes() for p in tmp_path.iterdir()}
     assert after == before          # nothing half-written, no temporary folder left
+
+
+@pytest.mark.parametrize("edit,field,valid", [
+    (lambda d: d["members"][0].update(start=10_000), "design JSON members[0].start",
+     "a node index from 0 to"),
+    (lambda d: d["members"][1].update(end=-1), "design JSON members[1].end", "a node index"),
+    (lambda d: d["nodes"][2].update(x=float("nan")), "design JSON nodes[2]", "finite x and z"),
+    (lambda d: d.pop("members"), "design JSON key 'members'", "present, as bridgeopt wrote it"),
+    (lambda d: d["members"][0].pop("sense"), "design JSON key 'sense'", "present"),
+], ids=["bad index", "negative index", "nan coordinate", "missing members", "missing sense"])
+def test_a_hand_edited_design_json_is_one_clear_error(design, tmp_path, edit, field, valid):
+    import json
+
+    from bridgeopt.files.export import read_design_json
+
+    export_design(design, tmp_path, ["json"])
+    data = json.loads((tmp_path / "design.json").read_text())
+    edit(data)
+    (tmp_path / "edited.json").write_text(json.dumps(data))
+    with pytest.raises(InputError) as err:
+        read_design_json(tmp_path / "edited.json")
+    assert err.value.field == field and valid in str(err.value)
