@@ -153,3 +153,29 @@ def test_report_with_a_bad_parameter_exits_2_with_one_plain_line(tmp_path, item)
     assert proc.stderr.count("\n") == 1 and "\x1b" not in proc.stderr
     assert proc.stderr.startswith(f"bridgeopt: error: --param = '{item}' is invalid")
     assert not out.exists()
+
+
+def test_far_proposal_nodes_are_refused_not_called_the_same_point():
+    from bridgeopt.files.proposal import proposal_from_dict
+
+    with pytest.raises(InputError) as err:
+        proposal_from_dict({"nodes": [[1e300, 0.0], [1e300 + 10.0, 0.0], [0.0, 0.0]],
+                            "members": [[0, 1]]})
+    assert err.value.field == "nodes[0]" and "within +-1e+07 m" in str(err.value)
+
+
+@pytest.mark.slow
+def test_judge_names_the_layout_file_for_a_layout_error(tmp_path):
+    import subprocess
+    import sys
+
+    scenario = tmp_path / "bracket.toml"
+    scenario.write_text('name = "bracket"\n[domain]\nx = [0.0, 4.0]\nz = [0.0, 2.0]\n'
+                        'spacing = 0.5\n[material]\npreset = "steel"\n[[support]]\n'
+                        'at = [0.0, 0.0]\n[[load]]\nat = [4.0, 1.0]\nforce = [0.0, -1.0e6]\n')
+    layout = tmp_path / "layout.json"
+    layout.write_text('{"nodes": [[0, 0], [4, 1]], "members": [[0, 5]]}')
+    proc = subprocess.run([sys.executable, "-m", "bridgeopt", "judge", str(scenario),
+                           str(layout)], capture_output=True, text=True, timeout=120)
+    assert proc.returncode == 2
+    assert f"(in {layout})" in proc.stderr and "bracket.toml" not in proc.stderr

@@ -92,6 +92,11 @@ def _coordinate(value, field: str) -> float:
     return v
 
 
+#: Largest coordinate of a proposed node: far beyond any crossing, well inside what double
+#: precision resolves to a millimetre. [m]
+MAX_COORDINATE = 1.0e7
+
+
 def _build(ids, xz, members, source: str) -> Proposal:
     """members: (start id, end id, group, sense, field prefix) tuples."""
     index: dict[str, int] = {}
@@ -104,6 +109,11 @@ def _build(ids, xz, members, source: str) -> Proposal:
     if not members:
         raise InputError("members", 0, "at least 1 member")
     xz = np.array(xz, dtype=float).reshape(-1, 2)
+    far = np.nonzero(~(np.abs(xz) <= MAX_COORDINATE).all(axis=1))[0]
+    if len(far):
+        i = int(far[0])
+        raise InputError(f"nodes[{i}]", [float(v) for v in xz[i]], f"finite x and z within "
+                         f"+-{MAX_COORDINATE:g} m (node {ids[i]})")
     tol = 1e-9 * max(float(np.ptp(xz, axis=0).max()), 1.0)
     order = np.lexsort((xz[:, 1], xz[:, 0]))
     close = np.nonzero(np.hypot(*np.diff(xz[order], axis=0).T) <= tol)[0]
