@@ -50,7 +50,11 @@ class BridgeScenario:
     deck_load : float
         Uniform load at deck level, deck self-weight and traffic. [N/m]
     material : Material
+        Material of the tension elements (and of the compression elements unless
+        ``compression_material`` is given).
     arrangement : {"repeating", "single"}
+        ``"repeating"``: the central span of a long run of equal spans (pier lines
+        held horizontally); ``"single"``: one span between anchored abutments.
     divisions : int
         Nodal divisions across the full span (even; the half model has half). [-]
     name : str

@@ -43,6 +43,8 @@ def traffic_load(pattern: str, *, intensity: float, deck: tuple[float, float], z
     Parameters
     ----------
     pattern : {"full", "half", "central", "user"}
+        Which part of the deck is loaded: all of it, the ``side`` half, the central
+        half, or ``start`` to ``end``.
     intensity : float
         Traffic load per unit length, positive downwards. [N/m]
     deck : (float, float)
@@ -94,7 +96,9 @@ class LoadCase:
     name : str
         Label for reports (unique within a study).
     loads : tuple of PointLoad
+        Concentrated loads of this case, at grid nodes.
     line_loads : tuple of LineLoad
+        Line loads of this case (e.g. :func:`traffic_load`).
     """
 
     name: str

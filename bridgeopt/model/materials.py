@@ -90,7 +90,17 @@ PRESETS: dict[str, Material] = {
 
 
 def material_from_name(name: str) -> Material:
-    """Return the preset called ``name``; raise :class:`InputError` otherwise."""
+    """Return the preset called ``name``; raise :class:`InputError` otherwise.
+
+    Parameters
+    ----------
+    name : str
+        Key of :data:`PRESETS` (``"steel"``, ``"cable-wire"`` ...).
+
+    Returns
+    -------
+    Material
+    """
     try:
         return PRESETS[name]
     except KeyError:

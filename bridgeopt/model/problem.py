@@ -183,8 +183,11 @@ class Problem:
         Material of the tension elements, and of the compression elements unless
         ``compression_material`` is given.
     supports : tuple of Support
+        Held points and the directions they are held in.
     loads : tuple of PointLoad
+        Concentrated loads at grid nodes.
     line_loads : tuple of LineLoad
+        Horizontal uniform line loads, lumped to the nodes along them.
     mirror_lines : tuple of float
         x-coordinates of vertical mirror (symmetry) lines on the domain's edge.
         Nodes on them are held horizontally (free horizontal reaction). [m]
