@@ -19,7 +19,18 @@ __all__ = ["FrameBuilder", "deck_level", "available_heights"]
 
 
 def deck_level(problem: Problem) -> tuple[float, float, float]:
-    """(x start, x end, z) of the deck: the problem's line load. [m]"""
+    """(x start, x end, z) of the deck: the problem's line load. [m]
+
+    Parameters
+    ----------
+    problem : Problem
+        A bridge problem with exactly one line load, the deck.
+
+    Returns
+    -------
+    (float, float, float)
+        x of the deck's start and end, and its height z. [m]
+    """
     if len(problem.line_loads) != 1:
         raise InputError("line_load", len(problem.line_loads), "one deck line load for a form")
     (xs, z), (xe, _) = problem.line_loads[0].start, problem.line_loads[0].end
@@ -27,14 +38,33 @@ def deck_level(problem: Problem) -> tuple[float, float, float]:
 
 
 def available_heights(problem: Problem) -> tuple[float, float]:
-    """(rise above, depth below) the deck within the design domain. [m]"""
+    """(rise above, depth below) the deck within the design domain. [m]
+
+    Parameters
+    ----------
+    problem : Problem
+        A bridge problem with exactly one line load, the deck.
+
+    Returns
+    -------
+    (float, float)
+        Height of the domain's top above the deck and of the deck above the
+        domain's bottom. [m]
+    """
     _, _, z0, z1 = problem.domain.bounds
     z = deck_level(problem)[2]
     return z1 - z, z - z0
 
 
 class FrameBuilder:
-    """Collects nodes, members and free parameters of a form on ``problem``."""
+    """Collects nodes, members and free parameters of a form on ``problem``.
+
+    Parameters
+    ----------
+    problem : Problem
+        The form's half-span problem (:func:`~bridgeopt.forms.build.form_problem`);
+        nodes closer than its position tolerance are merged.
+    """
 
     def __init__(self, problem: Problem) -> None:
         self.problem = problem
@@ -57,6 +87,7 @@ class FrameBuilder:
         return len(self.nodes) - 1
 
     def member(self, a: int, b: int, sense: str, group: str) -> None:
+        """A member from node ``a`` to node ``b`` (none when they are the same node)."""
         if a != b:
             self.members.append((a, b, sense, group))
 
