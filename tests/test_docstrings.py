@@ -59,6 +59,7 @@ MODULES = [
 
 SKIPPED = {"self", "cls"}
 NUMERIC = re.compile(r"\b(float|int|ndarray|array|array_like|number)s?\b")
+NOT_NUMERIC = re.compile(r"\b(bool|str)\b")
 UNIT_AT_END = re.compile(r"\[[^\[\]]+\]\.?$")
 HEADER = re.compile(r"^(\S.*)\n-{3,}$", re.M)
 
@@ -122,6 +123,11 @@ def docstring_of(obj) -> str:
     return doc
 
 
+def is_numeric(kind: str) -> bool:
+    """Whether a numpydoc type names a number or an array of numbers (not of bool or str)."""
+    return bool(NUMERIC.search(kind)) and not NOT_NUMERIC.search(kind)
+
+
 CASES = [pytest.param(obj, id=label) for m in MODULES for label, obj in exported(m)]
 
 
@@ -141,8 +147,7 @@ def test_parameters_documented_with_units(obj):
     assert not missing, f"parameters not documented: {missing}"
     undescribed = [n for n in names if not documented[n][1]]
     assert not undescribed, f"parameters without a description: {undescribed}"
-    no_unit = [n for n in names
-               if NUMERIC.search(documented[n][0]) and "bool" not in documented[n][0]
+    no_unit = [n for n in names if is_numeric(documented[n][0])
                and not UNIT_AT_END.search(documented[n][1])]
     assert not no_unit, f"numeric parameters whose description does not end in [unit]: {no_unit}"
 
@@ -176,3 +181,5 @@ def test_parser_reads_a_numpydoc_section():
     assert params == {"span": ("float", "Lengths. [m]"), "rise": ("float", "Lengths. [m]"),
                       "name": ("str", "Label.")}
     assert UNIT_AT_END.search(params["span"][1]) and not UNIT_AT_END.search("Label.")
+    assert is_numeric("(n, 2) float array") and is_numeric("int, optional")
+    assert not is_numeric("(m,) str array") and not is_numeric("ndarray of bool")
