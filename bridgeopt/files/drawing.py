@@ -143,7 +143,7 @@ def write_svg(design: Design, path: str | Path, **kwargs) -> Path:
     Parameters
     ----------
     design : Design
-        A solved design.
+        A solved design, drawn with its curved centrelines.
     path : path
         The ``.svg`` file to write.
     **kwargs

@@ -64,7 +64,7 @@ def nodes_table(design: Design):
     Parameters
     ----------
     design : Design
-        A solved design.
+        A solved design (its nodes, applied loads and reactions).
 
     Returns
     -------

@@ -153,6 +153,7 @@ def proposal_from_dict(data, *, source: str = "<dict>") -> Proposal:
     Returns
     -------
     Proposal
+        Nodes in the order listed, members by node index.
 
     Raises
     ------

@@ -43,7 +43,7 @@ def available_heights(problem: Problem) -> tuple[float, float]:
     Parameters
     ----------
     problem : Problem
-        A bridge problem with exactly one line load, the deck.
+        A bridge problem: its domain, and one line load at deck level.
 
     Returns
     -------
