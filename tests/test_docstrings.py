@@ -11,6 +11,10 @@ and takes parameters (``self``, ``cls``, ``*args`` and ``**kwargs`` skipped):
 - a function that returns something (return annotation other than ``None``) has a
   ``Returns`` (or ``Yields``) section.
 
+The public methods of those classes (no leading underscore) have a docstring, and one that
+takes parameters documents them in the same way (their one-line summary may give what they
+return, with its unit).
+
 The module list is the documentation engineer's share of the package for now; the lead
 extends it to every module.
 """
@@ -132,15 +136,20 @@ CASES = [pytest.param(obj, id=label) for m in MODULES for label, obj in exported
 
 
 def test_modules_export_something_documented():
-    assert len(CASES) > 80
+    assert len(CASES) > 80 and len(METHODS) > 20
 
 
-@pytest.mark.parametrize("obj", CASES)
-def test_parameters_documented_with_units(obj):
+METHODS = [pytest.param(fn, id=f"{c.id}.{name}")
+           for c in CASES if inspect.isclass(c.values[0])
+           for name, fn in vars(c.values[0]).items()
+           if not name.startswith("_") and inspect.isfunction(fn)]
+
+
+def check_parameters(obj, doc: str) -> None:
     names = parameters_of(obj)
     if not names:
         return
-    parts = sections(docstring_of(obj))
+    parts = sections(doc)
     assert "Parameters" in parts, "no numpydoc Parameters section"
     documented = documented_parameters(parts["Parameters"])
     missing = [n for n in names if n not in documented]
@@ -150,6 +159,18 @@ def test_parameters_documented_with_units(obj):
     no_unit = [n for n in names if is_numeric(documented[n][0])
                and not UNIT_AT_END.search(documented[n][1])]
     assert not no_unit, f"numeric parameters whose description does not end in [unit]: {no_unit}"
+
+
+@pytest.mark.parametrize("obj", CASES)
+def test_parameters_documented_with_units(obj):
+    check_parameters(obj, docstring_of(obj))
+
+
+@pytest.mark.parametrize("fn", METHODS)
+def test_public_methods_documented(fn):
+    doc = inspect.getdoc(fn)
+    assert doc, "no docstring"
+    check_parameters(fn, doc)
 
 
 @pytest.mark.parametrize("obj", [c for c in CASES if inspect.isfunction(c.values[0])])

@@ -64,7 +64,13 @@ class Proposal:
     source: str = "<dict>"
 
     def label(self, node: int) -> str:
-        """``'id (x = .. m, z = .. m)'`` of node index ``node``."""
+        """``'id (x = .. m, z = .. m)'`` of node index ``node``.
+
+        Parameters
+        ----------
+        node : int
+            Index into ``nodes``. [-]
+        """
         x, z = self.nodes[node]
         return f"{self.ids[node]} (x = {x:.6g} m, z = {z:.6g} m)"
 

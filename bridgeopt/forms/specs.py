@@ -72,6 +72,7 @@ class ReferenceForm:
     type = "reference"
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of the reference: ``{"type": "reference"}``."""
         return {"type": self.type}
 
 
@@ -122,6 +123,7 @@ class CableStayedForm:
                              "pylon top, harp stays evenly up the pylon)")
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""
         return {"type": self.type, **_fields(self)}
 
 
@@ -160,6 +162,7 @@ class SuspensionForm:
         _choice("form.shape", self.shape, SHAPES)
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""
         return {"type": self.type, **_fields(self)}
 
 
@@ -198,6 +201,7 @@ class ArchForm:
         _choice("form.shape", self.shape, SHAPES)
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""
         return {"type": self.type, **_fields(self)}
 
 

@@ -124,7 +124,13 @@ class BridgeScenario:
                        name=self.name)
 
     def normalised_volume(self, volume: float) -> float:
-        """volume / (deck_load * span^2 / tension strength). [-]"""
+        """volume / (deck_load * span^2 / tension strength). [-]
+
+        Parameters
+        ----------
+        volume : float
+            Material volume of the whole span. [m3]
+        """
         return volume * self.material.tension_strength / (self.deck_load * self.span ** 2)
 
     @property

@@ -200,14 +200,30 @@ class CaseStudy:
                                  "(or permanent loads in the problem)")
 
     def case_loads(self, i: int) -> tuple[tuple[PointLoad, ...], tuple[LineLoad, ...]]:
-        """Point and line loads acting in case ``i`` (permanent loads included)."""
+        """Point and line loads acting in case ``i`` (permanent loads included).
+
+        Parameters
+        ----------
+        i : int
+            Index into ``cases``. [-]
+
+        Returns
+        -------
+        (tuple of PointLoad, tuple of LineLoad)
+        """
         c = self.cases[i]
         if self.permanent:
             return self.problem.loads + c.loads, self.problem.line_loads + c.line_loads
         return c.loads, c.line_loads
 
     def total_load(self, i: int) -> float:
-        """Sum of the magnitudes of the applied loads of case ``i``. [N]"""
+        """Sum of the magnitudes of the applied loads of case ``i``. [N]
+
+        Parameters
+        ----------
+        i : int
+            Position of the case in ``cases``. [-]
+        """
         loads, lines = self.case_loads(i)
         total = sum(math.hypot(*p.force) for p in loads)
         total += sum(abs(q.intensity) * (q.end[0] - q.start[0]) for q in lines)

@@ -245,17 +245,35 @@ class Problem:
         return self.material.weightless and self.compression.weightless
 
     def k(self, sense: str) -> float:
-        """Self-weight parameter rho*g/sigma of the elements of ``sense``. [1/m]"""
+        """Self-weight parameter rho*g/sigma of the elements of ``sense``. [1/m]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            Tension elements use ``material``, compression elements ``compression``.
+        """
         mat = self.material if sense == "tension" else self.compression
         return mat.k(sense)
 
     def strength(self, sense: str) -> float:
-        """Design stress of the elements of ``sense``. [Pa]"""
+        """Design stress of the elements of ``sense``. [Pa]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            The tension stress of ``material``, or the compression stress of ``compression``.
+        """
         return (self.material.tension_strength if sense == "tension"
                 else self.compression.compression_strength)
 
     def density(self, sense: str) -> float:
-        """Density of the elements of ``sense``. [kg/m3]"""
+        """Density of the elements of ``sense``. [kg/m3]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            Picks ``material`` (tension) or ``compression`` (compression elements).
+        """
         return (self.material if sense == "tension" else self.compression).density
 
     def total_applied_load(self) -> float:

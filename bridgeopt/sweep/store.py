@@ -87,11 +87,25 @@ class Journal:
         self._lock = fh
 
     def finished(self, *, failed_too: bool = True) -> set[str]:
-        """Keys of finished cases (with ``failed_too=False``, only those that succeeded)."""
+        """Keys of finished cases (with ``failed_too=False``, only those that succeeded).
+
+        Parameters
+        ----------
+        failed_too : bool
+            Count cases whose row is not ``ok`` as finished.
+        """
         return {k for k, r in self.rows.items() if failed_too or r.get("status") == "ok"}
 
     def append(self, key: str, row: dict) -> None:
-        """Record one finished case durably (flush and fsync before returning)."""
+        """Record one finished case durably (flush and fsync before returning).
+
+        Parameters
+        ----------
+        key : str
+            The case's :func:`~bridgeopt.sweep.expand.case_key`.
+        row : dict
+            Its result columns (non-finite numbers are stored as null).
+        """
         row = {k: _plain(v) for k, v in row.items()}
         if self._fh is None:
             self._fh = open(self.path, "a", encoding="utf-8")
