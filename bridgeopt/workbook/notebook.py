@@ -88,7 +88,6 @@ def fast_mode() -> bool:
     Returns
     -------
     bool
-        ``BRIDGEOPT_FAST`` is ``1``, ``true``, ``yes`` or ``on``.
     """
     return _flag("BRIDGEOPT_FAST")
 
@@ -99,7 +98,6 @@ def report_mode() -> bool:
     Returns
     -------
     bool
-        ``BRIDGEOPT_REPORT`` is ``1``, ``true``, ``yes`` or ``on``.
     """
     return _flag("BRIDGEOPT_REPORT")
 
@@ -120,8 +118,7 @@ def param(name: str, default: Any, fast: Any = None) -> Any:
     Returns
     -------
     object
-        The value, of the type of ``default``, in the unit the notebook gives
-        the parameter (SI: m, N/m).
+        Of the type of ``default``, in the notebook's (SI) unit for it: m, N/m ...
 
     Raises
     ------
@@ -181,7 +178,6 @@ def message_html(text: str, kind: str = "error") -> str:
     Returns
     -------
     str
-        An HTML ``<div>``.
     """
     colour = {"error": "#9a3412", "note": "#1f5c99", "ok": "#2f6b3a"}.get(kind, "#333333")
     return (f'<div class="bridgeopt-{kind}" style="border-left:4px solid {colour};'
@@ -211,7 +207,6 @@ def forms_note(forms) -> str:
     Returns
     -------
     str
-        A :func:`message_html` note, or ``""`` when every form has a solver.
     """
     from bridgeopt.study.options import FORM_SOLVERS
 
