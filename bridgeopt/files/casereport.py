@@ -42,13 +42,13 @@ def format_case_summary(design, *, header: list[str], inputs: list[str],
     inputs : list of str
         Input lines (span, heights, material ...), as in the single-case summary.
     wall_seconds : float, optional
-        Total time, reported on the last line. [s]
+        Total time including reading and checking, reported as ``total time``. [s]
 
     Returns
     -------
     str
-        Lines joined by newlines: inputs, cases, result, cost, members each case
-        governs, cautions.
+        Lines joined by newlines: inputs, the cases (load in N, members each
+        governs), volume (m3), cost, volume per group, weight (N), solve, cautions.
     """
     study = design.study
     row = lambda label, text: f"  {label:<22} {text}"  # noqa: E731
