@@ -60,7 +60,13 @@ COMMANDS = (add_solve, add_demo, add_check, add_sweep, add_export, add_judge,
 
 
 def build_parser() -> argparse.ArgumentParser:
-    """The argument parser with every command of :data:`COMMANDS`."""
+    """The argument parser with every command of :data:`COMMANDS`.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        Usage errors are one line on stderr and exit with status 2.
+    """
     parser = _Parser(prog="bridgeopt",
                      description="Minimum-volume layouts of bridge concepts by linear "
                                  "programming (concept-stage estimates only).",
@@ -91,7 +97,19 @@ def _setup_logging() -> None:
 
 
 def main(argv: list[str] | None = None) -> int:
-    """Run the command line ``argv`` (default ``sys.argv[1:]``); return the exit status."""
+    """Run the command line ``argv`` (default ``sys.argv[1:]``); return the exit status.
+
+    Parameters
+    ----------
+    argv : list of str, optional
+        The arguments after the program name (default ``sys.argv[1:]``).
+
+    Returns
+    -------
+    int
+        0 success, 2 bad input, 3 the solve failed, 1 an internal error, 130
+        interrupted. [-]
+    """
     _setup_logging()
     parser = build_parser()
     try:

@@ -29,19 +29,32 @@ _ANSI = re.compile(r"\x1b\[[0-9;?]*[ -/]*[@-~]")
 
 
 def say_error(message: str) -> None:
-    """One line ``bridgeopt: error: ...`` on stderr (white space folded, no colour codes).
+    """Print ``bridgeopt: error: MESSAGE`` on stderr, on one line, without colour codes.
 
     Parameters
     ----------
     message : str
-        The error, as one sentence.
+        The error; runs of white space (line breaks included) become one space.
     """
     text = _ANSI.sub("", str(message))
     print("bridgeopt: error: " + " ".join(text.split()), file=sys.stderr)
 
 
 def number_text(value: float, digits: int = 5) -> str:
-    """A number with ``digits`` significant figures and thousands separators."""
+    """A number with ``digits`` significant figures and thousands separators.
+
+    Parameters
+    ----------
+    value : float
+        The number, in whatever unit the caller prints after it. [any]
+    digits : int
+        Significant figures. [-]
+
+    Returns
+    -------
+    str
+        Plain or with thousands separators; in exponent form below 1e-3 and from 1e12.
+    """
     if not math.isfinite(value):
         return str(value)
     if value != 0 and (abs(value) >= 1e12 or abs(value) < 1e-3):
@@ -52,6 +65,17 @@ def number_text(value: float, digits: int = 5) -> str:
 
 
 def material_text(m: Material) -> str:
+    """One line naming a material, its design stresses (MPa) and density (kg/m3).
+
+    Parameters
+    ----------
+    m : Material
+        The material.
+
+    Returns
+    -------
+    str
+    """
     if m.tension_strength == m.compression_strength:
         stress = f"{number_text(m.tension_strength / 1e6)} MPa"
     else:
@@ -62,11 +86,35 @@ def material_text(m: Material) -> str:
 
 
 def row(label: str, text: str) -> str:
+    """One indented line of a summary: ``label`` in a column 22 wide, then ``text``.
+
+    Parameters
+    ----------
+    label : str
+        What the line gives (``"span"``).
+    text : str
+        The value with its unit (``"1,200 m"``).
+
+    Returns
+    -------
+    str
+    """
     return f"  {label:<22} {text}"
 
 
 def format_inputs(scenario: Scenario) -> list[str]:
-    """Lines listing a scenario's inputs with units."""
+    """Lines listing a scenario's inputs with units.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        A parsed scenario (layout or bridge, with or without a form).
+
+    Returns
+    -------
+    list of str
+        One line per input, as :func:`row` gives them.
+    """
     p = scenario.problem
     lines = []
     if scenario.bridge is not None:
@@ -118,7 +166,18 @@ def format_inputs(scenario: Scenario) -> list[str]:
 
 
 def format_form(result) -> list[str]:
-    """Lines setting a solved bridge form against the reference optimum."""
+    """Lines setting a solved bridge form against the reference optimum.
+
+    Parameters
+    ----------
+    result : FormResult
+        A solved form (:func:`~bridgeopt.forms.solve_form`).
+
+    Returns
+    -------
+    list of str
+        Volumes (m3), ratio, main dimensions (m) and quantities per element group.
+    """
     keys = ", ".join(f"{k} = {v!r}" for k, v in result.spec.to_dict().items() if k != "type")
     lines = [f"Form: {result.form_type}" + (f" ({keys})" if keys else ""),
              row("form volume", f"{number_text(result.volume)} m3 (starting geometry "
@@ -143,6 +202,22 @@ def format_summary(scenario: Scenario, design: Design, wall_seconds: float | Non
 
     With ``form`` (a :class:`~bridgeopt.forms.FormResult` whose design is
     ``design``), the form is set against the reference optimum.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The scenario solved.
+    design : Design
+        Its solved design.
+    wall_seconds : float, optional
+        Total time including reading and checking. [s]
+    form : FormResult, optional
+        The solved form when the scenario has a ``[form]`` table.
+
+    Returns
+    -------
+    str
+        Inputs, result, solve statistics, then the cautions, one per line.
     """
     m = design.members
     n_t = int((m.sense == "tension").sum())
@@ -195,6 +270,24 @@ def check_json_target(path: str | None, *, force: bool = False) -> Path | None:
     """Fail before the solve when the JSON cannot be written where asked.
 
     An existing file is replaced only when bridgeopt wrote it, or with ``force``.
+
+    Parameters
+    ----------
+    path : str, optional
+        The ``--json`` argument (None when not given).
+    force : bool
+        Replace an existing file bridgeopt did not write.
+
+    Returns
+    -------
+    Path or None
+        ``path`` as a :class:`~pathlib.Path`.
+
+    Raises
+    ------
+    InputError
+        A directory, a missing or a read-only parent directory, or a file of the user's
+        (without ``force``).
     """
     if path is None:
         return None

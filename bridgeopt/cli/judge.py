@@ -39,6 +39,13 @@ def run_judge(args) -> int:
 
 
 def add_judge(sub) -> None:
+    """Add the ``judge`` command (a proposed layout against the reference optimum).
+
+    Parameters
+    ----------
+    sub : argparse subparsers
+        The command registry of the ``bridgeopt`` parser, to add ``judge`` to.
+    """
     p = sub.add_parser("judge", help="size a proposed layout and compare it with the optimum",
                        description="Read a proposed layout (nodes and members, CSV or JSON; see "
                                    "docs/formats.md), size it with the same LP and self-weight "

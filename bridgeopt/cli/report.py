@@ -35,6 +35,13 @@ def run_report(args) -> int:
 
 
 def add_report(sub) -> None:
+    """Add the ``report`` command (a study notebook executed into one HTML file).
+
+    Parameters
+    ----------
+    sub : argparse subparsers
+        The command registry of the ``bridgeopt`` parser, to add ``report`` to.
+    """
     p = sub.add_parser("report", help="execute a study notebook and write an HTML report",
                        description="Execute a study notebook (studies/*.ipynb) in a fresh "
                                    "kernel and write one self-contained HTML file (plotly.js "

@@ -14,7 +14,16 @@ from bridgeopt.errors import InputError
 __all__ = ["SweepProgress", "add_sweep"]
 
 class SweepProgress:
-    """A progress bar on stderr (one line, redrawn on a terminal; a line per 5 % otherwise)."""
+    """A progress bar on stderr (one line, redrawn on a terminal; a line per 5 % otherwise).
+
+    Called as ``progress(done, total, case, row)`` by
+    :func:`~bridgeopt.sweep.run.run_sweep` after each finished case.
+
+    Parameters
+    ----------
+    stream : file, optional
+        Where the bar is written (default ``sys.stderr``).
+    """
 
     WIDTH = 30
 
@@ -93,6 +102,13 @@ def run_sweep_command(args) -> int:
 
 
 def add_sweep(sub) -> None:
+    """Add the ``sweep`` command (a sweep file solved case by case, resumable).
+
+    Parameters
+    ----------
+    sub : argparse subparsers
+        What ``add_subparsers()`` returned in :func:`~bridgeopt.cli.app.build_parser`.
+    """
     p = sub.add_parser("sweep", help="solve every combination of a sweep file",
                        description="Solve every case of a sweep file (a scenario file in which "
                                    "any value may be a list; see docs/formats.md) and write one "

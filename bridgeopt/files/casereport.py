@@ -33,7 +33,22 @@ def format_case_summary(design, *, header: list[str], inputs: list[str],
                         wall_seconds: float | None = None) -> str:
     """The text summary of a multi-case design, ending with the cautions.
 
-    ``header`` and ``inputs`` are the lines the single-case summary starts with.
+    Parameters
+    ----------
+    design : CaseDesign
+        A solved multi-case design (:func:`~bridgeopt.solver.multicase.optimize_cases`).
+    header : list of str
+        Opening lines (title, source), as the single-case summary starts.
+    inputs : list of str
+        Input lines (span, heights, material ...), as in the single-case summary.
+    wall_seconds : float, optional
+        Total time including reading and checking, reported as ``total time``. [s]
+
+    Returns
+    -------
+    str
+        Lines joined by newlines: inputs, the cases (load in N, members each
+        governs), volume (m3), cost, volume per group, weight (N), solve, cautions.
     """
     study = design.study
     row = lambda label, text: f"  {label:<22} {text}"  # noqa: E731
@@ -71,7 +86,22 @@ def format_case_summary(design, *, header: list[str], inputs: list[str],
 
 
 def case_design_to_dict(design, *, scenario=None, wall_seconds: float | None = None) -> dict:
-    """A JSON-ready dict of a multi-case design (SI units; keys in the module docstring)."""
+    """A JSON-ready dict of a multi-case design (SI units; keys in the module docstring).
+
+    Parameters
+    ----------
+    design : CaseDesign
+        A solved multi-case design.
+    scenario : Scenario, optional
+        The scenario it was solved from: adds its name, kind, source and inputs.
+    wall_seconds : float, optional
+        Total time, recorded in ``stats``. [s]
+
+    Returns
+    -------
+    dict
+        Plain JSON values, schema :data:`CASES_SCHEMA`.
+    """
     from bridgeopt import __version__
 
     study = design.study

@@ -64,7 +64,18 @@ def _plain(value: Any) -> Any:
 
 
 def scenario_inputs(scenario) -> dict:
-    """The inputs of a :class:`~bridgeopt.files.scenario.Scenario` in the scenario-file schema."""
+    """The inputs of a :class:`~bridgeopt.files.scenario.Scenario` in the scenario-file schema.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        A parsed scenario file.
+
+    Returns
+    -------
+    dict
+        Its tables and keys as plain JSON values, in SI units (N, m, Pa, kg/m3).
+    """
     return _plain(scenario.to_dict())
 
 
@@ -98,6 +109,7 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
     Parameters
     ----------
     design : Design
+        A solved design (layout, form or frame).
     scenario : Scenario, optional
         Adds the inputs in file schema, the name, kind and source; without it the
         inputs come from ``design.problem``.
@@ -107,6 +119,11 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
         A solved bridge form (``design`` is then its design): adds
         ``reference_volume`` [m3], ``volume_ratio`` [-] and ``form`` (type, keys,
         starting volume, main dimensions, quantities per element group).
+
+    Returns
+    -------
+    dict
+        Plain JSON values (non-finite numbers as None), schema :data:`SCHEMA`.
     """
     problem = design.problem
     m = design.members
@@ -182,7 +199,18 @@ def _version() -> str:
 
 
 def to_json(data: dict) -> str:
-    """Strict JSON text of ``data`` (NaN and infinity are refused)."""
+    """Strict JSON text of ``data`` (NaN and infinity become null).
+
+    Parameters
+    ----------
+    data : dict
+        JSON-ready values; numpy numbers and arrays are turned into plain ones.
+
+    Returns
+    -------
+    str
+        One JSON document and a newline.
+    """
     return json.dumps(_plain(data), allow_nan=False) + "\n"
 
 
@@ -191,6 +219,18 @@ def write_json(path: str | os.PathLike, data: dict) -> Path:
 
     A reader never sees a half-written file; on failure the old file, if any,
     is left as it was.
+
+    Parameters
+    ----------
+    path : path
+        The JSON file to write.
+    data : dict
+        JSON-ready values (:func:`design_to_dict`, a case report ...).
+
+    Returns
+    -------
+    Path
+        ``path``.
     """
     text = to_json(data)
     return atomic_write(path, lambda tmp: Path(tmp).write_text(text, encoding="utf-8"))

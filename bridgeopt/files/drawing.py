@@ -34,7 +34,18 @@ _ACI = {"tension": 5, "compression": 1}
 
 
 def layer_name(group: str) -> str:
-    """The DXF layer of an element group: upper case, characters DXF refuses replaced by ``_``."""
+    """The DXF layer of an element group: upper case, characters DXF refuses replaced by ``_``.
+
+    Parameters
+    ----------
+    group : str
+        Element-group label (``"stay"``, ``"arch rib"`` ...).
+
+    Returns
+    -------
+    str
+        The layer name (``"MEMBER"`` for an empty label).
+    """
     name = re.sub(r"[<>/\\\":;?*|=',\s]+", "_", str(group).strip()).upper()
     return name or "MEMBER"
 
@@ -66,10 +77,16 @@ def design_svg(design: Design, *, title: str | None = None, width: float = 1000.
     Parameters
     ----------
     design : Design
+        A solved design; curved members are drawn along their centrelines.
     title : str, optional
         Heading drawn above the structure (default: the problem's name).
     width : float
-        Drawing width in SVG user units (pixels); the height follows. [-]
+        Drawing width in SVG user units (pixels); the height follows. [px]
+
+    Returns
+    -------
+    str
+        The SVG document.
     """
     xz = np.asarray(design.nodes, dtype=float)
     curves = _curves(design)
@@ -121,7 +138,22 @@ def design_svg(design: Design, *, title: str | None = None, width: float = 1000.
 
 
 def write_svg(design: Design, path: str | Path, **kwargs) -> Path:
-    """Write :func:`design_svg` to ``path``."""
+    """Write :func:`design_svg` to ``path``.
+
+    Parameters
+    ----------
+    design : Design
+        A solved design, drawn with its curved centrelines.
+    path : path
+        The ``.svg`` file to write.
+    **kwargs
+        ``title`` and ``width`` of :func:`design_svg`.
+
+    Returns
+    -------
+    Path
+        ``path``.
+    """
     path = Path(path)
     path.write_text(design_svg(design, **kwargs), encoding="utf-8")
     return path
@@ -134,6 +166,18 @@ def write_dxf(design: Design, path: str | Path) -> Path:
     centreline points, each on the layer of its element group, coloured by sense
     (blue tension, red compression).  Coordinates are x and z in m (drawn as
     the drawing's x and y).
+
+    Parameters
+    ----------
+    design : Design
+        A solved design.
+    path : path
+        The ``.dxf`` file to write.
+
+    Returns
+    -------
+    Path
+        ``path``.
     """
     import ezdxf
     from ezdxf import units

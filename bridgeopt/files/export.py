@@ -44,14 +44,36 @@ FORMATS = {"csv": ("members.csv", "nodes.csv"), "json": ("design.json",),
 
 
 def members_table(design: Design):
-    """Members as a :class:`pandas.DataFrame` with an ``id`` column first."""
+    """Members as a :class:`pandas.DataFrame` with an ``id`` column first.
+
+    Parameters
+    ----------
+    design : Design
+        A solved design.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per member; forces in N, volumes in m3, lengths in m.
+    """
     df = design.to_frame()
     df.insert(0, "id", np.arange(len(df)))
     return df
 
 
 def nodes_table(design: Design):
-    """Nodes as a :class:`pandas.DataFrame` with an ``id`` column first."""
+    """Nodes as a :class:`pandas.DataFrame` with an ``id`` column first.
+
+    Parameters
+    ----------
+    design : Design
+        A solved design (its nodes, applied loads and reactions).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per node; coordinates in m, loads and reactions in N.
+    """
     df = design.nodes_frame()
     df.insert(0, "id", np.arange(len(df)))
     return df
@@ -142,11 +164,17 @@ def export_design(design: Design, folder: str | Path, formats: Iterable[str] = t
     Parameters
     ----------
     design : Design
+        A solved design.
     folder : path
         Created if missing.
     formats : iterable of {"csv", "json", "svg", "dxf"}
-    scenario, form, wall_seconds
-        Passed to :func:`~bridgeopt.files.design_json.design_to_dict` for the JSON.
+        Which files to write (:data:`FORMATS`); a comma-separated string is accepted.
+    scenario : Scenario, optional
+        The scenario it was solved from, for the JSON's inputs.
+    form : FormResult, optional
+        A solved bridge form, for the JSON's form keys and reference volume.
+    wall_seconds : float, optional
+        Total solve time, recorded in the JSON's stats. [s]
     force : bool
         Replace files at the export's names that bridgeopt did not write.
 
@@ -204,6 +232,16 @@ def design_from_dict(data: dict) -> Design:
 
     Duals are not stored in the JSON: they come back as nan.  Reactions come back
     one row per supported node (the JSON sums them per node).
+
+    Parameters
+    ----------
+    data : dict
+        The decoded JSON of a solve (schema ``bridgeopt.design/1``).
+
+    Returns
+    -------
+    Design
+        With its problem rebuilt from the JSON's inputs.
 
     Raises
     ------
@@ -265,5 +303,15 @@ def _design_from_dict(data: dict) -> Design:
 
 
 def read_design_json(path: str | Path) -> Design:
-    """:func:`design_from_dict` of the JSON file at ``path``."""
+    """:func:`design_from_dict` of the JSON file at ``path``.
+
+    Parameters
+    ----------
+    path : path
+        A ``design.json`` written by ``bridgeopt solve --json`` or ``export``.
+
+    Returns
+    -------
+    Design
+    """
     return design_from_dict(read_json(path, "design JSON file"))

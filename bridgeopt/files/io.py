@@ -73,6 +73,18 @@ def read_input_bytes(path: str | os.PathLike, what: str) -> bytes:
 def read_toml(path: str | os.PathLike, what: str) -> dict:
     """The TOML document at ``path``; ``what`` names it in errors (``"scenario file"``).
 
+    Parameters
+    ----------
+    path : path
+        The ``.toml`` file.
+    what : str
+        What the file is, for messages (``"scenario file"``, ``"sweep file"``).
+
+    Returns
+    -------
+    dict
+        The document's tables and values, as :mod:`tomllib` gives them.
+
     Raises
     ------
     InputError
@@ -94,6 +106,18 @@ def read_toml(path: str | os.PathLike, what: str) -> dict:
 def read_json(path: str | os.PathLike, what: str):
     """The JSON document at ``path``; ``what`` names it in errors (``"design JSON file"``).
 
+    Parameters
+    ----------
+    path : path
+        The JSON file (UTF-8).
+    what : str
+        What the file is, for messages (``"design JSON file"``, ``"layout JSON file"``).
+
+    Returns
+    -------
+    object
+        The decoded document (usually a dict).
+
     Raises
     ------
     InputError
@@ -112,6 +136,18 @@ def atomic_write(path: str | os.PathLike, write: Callable[[str], None]) -> Path:
 
     A reader never sees a half-written file; on failure the old file, if any, is
     left as it was and the temporary file is removed.
+
+    Parameters
+    ----------
+    path : path
+        The file to write (its folder must exist).
+    write : callable
+        ``write(temporary_path)`` writes the whole content to the path it is given.
+
+    Returns
+    -------
+    Path
+        ``path``.
     """
     path = Path(path)
     fd, tmp = tempfile.mkstemp(dir=path.parent if str(path.parent) else ".",

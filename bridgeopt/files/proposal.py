@@ -39,14 +39,14 @@ SENSES = ("tension", "compression", "either")
 class Proposal:
     """A user's layout: node ids and coordinates, members between them.
 
-    Attributes
+    Parameters
     ----------
     ids : tuple of str
         Node ids as the user wrote them (for messages).
     nodes : (n, 2) float array
         Node coordinates x, z. [m]
     start, end : (m,) int arrays
-        Member end nodes (indices into ``nodes``).
+        Member end nodes (indices into ``nodes``). [-]
     group : (m,) str array
         Element-group label per member (``"member"`` when not given).
     senses : (m,) str array
@@ -64,7 +64,13 @@ class Proposal:
     source: str = "<dict>"
 
     def label(self, node: int) -> str:
-        """``'id (x = .. m, z = .. m)'`` of node index ``node``."""
+        """``'id (x = .. m, z = .. m)'`` of node index ``node``.
+
+        Parameters
+        ----------
+        node : int
+            Index into ``nodes``. [-]
+        """
         x, z = self.nodes[node]
         return f"{self.ids[node]} (x = {x:.6g} m, z = {z:.6g} m)"
 
@@ -149,7 +155,27 @@ def _text(value, default: str) -> str:
 
 
 def proposal_from_dict(data, *, source: str = "<dict>") -> Proposal:
-    """A :class:`Proposal` from the JSON format (see the module docstring)."""
+    """A :class:`Proposal` from the JSON format (see the module docstring).
+
+    Parameters
+    ----------
+    data : dict
+        ``{"nodes": [...], "members": [...]}``: nodes as ``{"id", "x", "z"}`` or
+        ``[x, z]`` in m, members as ``{"start", "end", "group", "sense"}`` or
+        ``[start, end]`` by node id.
+    source : str
+        Where the data came from, for messages.
+
+    Returns
+    -------
+    Proposal
+        Nodes in the order listed, members by node index.
+
+    Raises
+    ------
+    InputError
+        A missing list, a duplicate or unknown node id, a bad coordinate or sense.
+    """
     if not isinstance(data, dict) or "nodes" not in data or "members" not in data:
         raise InputError("layout", "{...}" if isinstance(data, dict) else data,
                          'a JSON object with "nodes" and "members" lists')
@@ -211,6 +237,10 @@ def read_proposal(path: str | Path, members: str | Path | None = None) -> Propos
         ``members.csv``.
     members : path, optional
         The members CSV (default: ``members.csv`` beside ``nodes.csv``).
+
+    Returns
+    -------
+    Proposal
 
     Raises
     ------

@@ -29,9 +29,12 @@ def arch_frame(problem, *, panels: int, variant: str, springing: float, rise: fl
     Parameters
     ----------
     problem : Problem
+        The form's half-span problem; its line load is the deck, and a support
+        at the springing line holds the rib.
     panels : int
         Column or hanger panels across the half span. [-]
     variant : {"deck-arch", "through-arch"}
+        Rib below the deck on compression columns, or above it on tension hangers.
     springing : float
         Height of the springing node (bottom of the domain for a deck arch, the
         deck for a through arch). [m]
@@ -45,8 +48,8 @@ def arch_frame(problem, *, panels: int, variant: str, springing: float, rise: fl
     rise_bounds : (float, float), optional
         Parabolic shape: least and largest rise when the rise is free. [m]
     height_bounds : (float, float), optional
-        Free shape: lowest and highest z of a rib node. [m]  The crown moves only
-        when ``rise_bounds`` is also given.
+        Free shape: lowest and highest z of a rib node; the crown moves only
+        when ``rise_bounds`` is also given. [m]
 
     Returns
     -------

@@ -68,6 +68,18 @@ def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
     docstring): piers under intermediate pylons, and the horizontal anchorage of
     a single span's pylon or tower tops.
 
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing (span, rise, depth, deck load, materials, arrangement).
+    spec : FormSpec
+        The form; its pylon count and type decide the extra supports.
+
+    Returns
+    -------
+    Problem
+        The half-span problem (``copies = 2``), with the form's supports.
+
     Raises
     ------
     InputError
@@ -100,6 +112,20 @@ def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
     H (1 - k L^2/(8 f)) = w L^2/(8 f), which has a positive H only when
     f > k L^2/8 (k = rho g/sigma).  Hangers or columns add weight, so the true
     limit is a little higher.
+
+    Parameters
+    ----------
+    problem : Problem
+        Gives the self-weight parameter k = rho g / sigma of its materials.
+    sense : {"tension", "compression"}
+        A cable (tension) or an arch (compression).
+    span : float
+        Span the cable or arch crosses. [m]
+
+    Returns
+    -------
+    float
+        Least sag (cable) or rise (arch), k L^2 / 8. [m]
     """
     return problem.k(sense) * span ** 2 / 8.0
 
@@ -170,6 +196,25 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
     ``rise``) [m]; the defaults are :data:`START_SPAN_TO_HEIGHT`,
     :data:`START_SAG_RATIO`, :data:`START_RISE_RATIO` and towers just tall
     enough for the sag and the least clearance; values are clipped to the bounds.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing (span, rise, depth, divisions, deck load, materials).
+    spec : FormSpec
+        A cable-stayed, suspension or arch form (the reference has no frame).
+    problem : Problem, optional
+        The form's problem; default :func:`form_problem` of ``bridge`` and ``spec``.
+    start : mapping of str to float, optional
+        Starting values of free dimensions by name (``pylon_height``, ``sag``,
+        ``tower_height``, ``rise``). [m]
+
+    Returns
+    -------
+    Frame
+        Nodes and members of the form, with senses and element groups.
+    NodeMoves or None
+        The free geometric parameters (None when every dimension is fixed).
 
     Raises
     ------

@@ -19,7 +19,18 @@ __all__ = ["FrameBuilder", "deck_level", "available_heights"]
 
 
 def deck_level(problem: Problem) -> tuple[float, float, float]:
-    """(x start, x end, z) of the deck: the problem's line load. [m]"""
+    """(x start, x end, z) of the deck: the problem's line load. [m]
+
+    Parameters
+    ----------
+    problem : Problem
+        A bridge problem with exactly one line load, the deck.
+
+    Returns
+    -------
+    (float, float, float)
+        x of the deck's start and end, and its height z. [m]
+    """
     if len(problem.line_loads) != 1:
         raise InputError("line_load", len(problem.line_loads), "one deck line load for a form")
     (xs, z), (xe, _) = problem.line_loads[0].start, problem.line_loads[0].end
@@ -27,14 +38,33 @@ def deck_level(problem: Problem) -> tuple[float, float, float]:
 
 
 def available_heights(problem: Problem) -> tuple[float, float]:
-    """(rise above, depth below) the deck within the design domain. [m]"""
+    """(rise above, depth below) the deck within the design domain. [m]
+
+    Parameters
+    ----------
+    problem : Problem
+        A bridge problem: its domain, and one line load at deck level.
+
+    Returns
+    -------
+    (float, float)
+        Height of the domain's top above the deck and of the deck above the
+        domain's bottom. [m]
+    """
     _, _, z0, z1 = problem.domain.bounds
     z = deck_level(problem)[2]
     return z1 - z, z - z0
 
 
 class FrameBuilder:
-    """Collects nodes, members and free parameters of a form on ``problem``."""
+    """Collects nodes, members and free parameters of a form on ``problem``.
+
+    Parameters
+    ----------
+    problem : Problem
+        The form's half-span problem (:func:`~bridgeopt.forms.build.form_problem`);
+        nodes closer than its position tolerance are merged.
+    """
 
     def __init__(self, problem: Problem) -> None:
         self.problem = problem
@@ -45,7 +75,17 @@ class FrameBuilder:
         self._index: dict[tuple[int, int], int] = {}
 
     def node(self, x: float, z: float) -> int:
-        """Index of the node at (x, z), created if new. [m]"""
+        """Index of the node at (x, z), created if new.
+
+        Parameters
+        ----------
+        x, z : float
+            Position; a node within the position tolerance is re-used. [m]
+
+        Returns
+        -------
+        int
+        """
         kx, kz = round(x / self.tol), round(z / self.tol)
         for dx in (-1, 0, 1):
             for dz in (-1, 0, 1):
@@ -57,20 +97,63 @@ class FrameBuilder:
         return len(self.nodes) - 1
 
     def member(self, a: int, b: int, sense: str, group: str) -> None:
+        """A member from node ``a`` to node ``b`` (none when they are the same node).
+
+        Parameters
+        ----------
+        a, b : int
+            End node indices. [-]
+        sense : {"tension", "compression", "either"}
+            What the member may carry.
+        group : str
+            Element-group label (``"stay"``, ``"pylon"``, ``"deck"`` ...).
+        """
         if a != b:
             self.members.append((a, b, sense, group))
 
     def chain(self, indices, sense: str, group: str) -> None:
-        """Members joining consecutive nodes of ``indices``."""
+        """Members joining consecutive nodes of ``indices``.
+
+        Parameters
+        ----------
+        indices : sequence of int
+            Node indices in order along the chain. [-]
+        sense : {"tension", "compression", "either"}
+            Sense of every member of the chain.
+        group : str
+            Element-group label of every member of the chain.
+        """
         for a, b in zip(indices[:-1], indices[1:]):
             self.member(a, b, sense, group)
 
     def parameter(self, name: str, lower: float, upper: float, moves: dict) -> None:
-        """A free parameter; ``moves`` maps (node, 0 for x / 1 for z) to metres per metre."""
+        """A free parameter; ``moves`` maps (node, 0 for x / 1 for z) to metres per metre.
+
+        Parameters
+        ----------
+        name : str
+            Label of the parameter (``"pylon height"``, ``"sag"`` ...).
+        lower, upper : float
+            Bounds of the move from the starting geometry. [m]
+        moves : dict
+            ``{(node, 0 or 1): rate}``: how far each node coordinate moves per metre
+            of the parameter. [m/m]
+        """
         self.params.append((name, float(lower), float(upper), dict(moves)))
 
     def deck(self, extra_x=()) -> list[int]:
-        """Deck nodes (every node at deck level, the deck's ends and ``extra_x``), joined."""
+        """Deck nodes (every node at deck level, the deck's ends and ``extra_x``), joined.
+
+        Parameters
+        ----------
+        extra_x : sequence of float
+            More deck nodes to create at these x. [m]
+
+        Returns
+        -------
+        list of int
+            The deck nodes from left to right.
+        """
         xs, xe, z = deck_level(self.problem)
         for x in (xs, xe, *extra_x):
             self.node(x, z)
@@ -86,6 +169,13 @@ class FrameBuilder:
         Nothing when a support holds the deck node vertically (an abutment);
         otherwise a compression member to the highest support on the line x
         that holds vertically.
+
+        Parameters
+        ----------
+        x : float
+            The pier's line. [m]
+        top : int
+            The deck node on that line. [-]
         """
         z_deck = self.nodes[top][1]
         below = [s for s in self.problem.supports if "z" in s.fix
@@ -98,6 +188,16 @@ class FrameBuilder:
             self.member(self.node(x, s.at[1]), top, "compression", "pier")
 
     def build(self) -> tuple[Frame, NodeMoves | None]:
+        """The frame of the collected nodes and members, and its free geometry.
+
+        Every support of the problem becomes a node, so that ``size_frame`` finds it.
+
+        Returns
+        -------
+        Frame
+        NodeMoves or None
+            None when no parameter was added.
+        """
         for s in self.problem.supports:   # size_frame looks every support up among the nodes
             self.node(*s.at)
         nodes = np.array(self.nodes, dtype=float)

@@ -25,7 +25,22 @@ __all__ = ["cable_stayed_frame", "anchor_fractions"]
 
 
 def anchor_fractions(pattern: str, stays: int, anchor_zone: float = 0.25) -> np.ndarray:
-    """Anchor heights on the pylon over the pylon height, stay 1 (nearest) to ``stays``. [-]"""
+    """Anchor heights on the pylon over the pylon height, stay 1 (nearest) to ``stays``. [-]
+
+    Parameters
+    ----------
+    pattern : {"fan", "semi-fan", "harp"}
+        Stay arrangement (module docstring).
+    stays : int
+        Stays on one side of the pylon. [-]
+    anchor_zone : float
+        Semi-fan only: part of the pylon height, from the top, holding the anchors. [-]
+
+    Returns
+    -------
+    ndarray, shape (stays,)
+        Anchor height over pylon height, in (0, 1]. [-]
+    """
     i = np.arange(1, stays + 1, dtype=float)
     if pattern == "fan":
         return np.ones(stays)
@@ -53,6 +68,8 @@ def cable_stayed_frame(problem, *, pylons_x, reach: float, pattern: str, stays: 
     reach : float
         Deck length served by a pylon on each side, ``a``. [m]
     pattern : {"fan", "semi-fan", "harp"}
+        Stay arrangement: all at the top, over the top ``anchor_zone``, or evenly
+        up the pylon.
     stays : int
         Stays per side of each pylon. [-]
     height : float

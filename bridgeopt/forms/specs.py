@@ -72,6 +72,7 @@ class ReferenceForm:
     type = "reference"
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of the reference: ``{"type": "reference"}``."""
         return {"type": self.type}
 
 
@@ -86,18 +87,18 @@ class CableStayedForm:
         top ``anchor_zone`` of the pylon, the farthest stay highest (semi-fan);
         parallel stays, anchors evenly up the whole pylon (harp).
     stays : int, optional
-        Stays on each side of each pylon. [-]  Left out: one per grid step
-        (span/divisions) of the deck, as finely as the reference is loaded.
+        Stays on each side of each pylon; left out: one per grid step
+        (span/divisions) of the deck, as finely as the reference is loaded. [-]
     pylons : int
         Pylons per span: 1 puts a pylon at every pier only; more adds
         intermediate pylons, evenly spaced inside the span, each on its own pier
         (as in multi-span cable-stayed crossings). [-]
     span_to_height : float, optional
         Distance between neighbouring pylons (span / pylons) over the pylon's
-        height above the deck. [-]  Left out: the height is free (optimized).
+        height above the deck; left out: the height is free (optimized). [-]
     anchor_zone : float, optional
         Semi-fan only: the part of the pylon height, from the top down, over
-        which the stays anchor. [-]  Left out: 0.25.
+        which the stays anchor; left out: 0.25. [-]
     """
 
     type = "cable-stayed"
@@ -122,6 +123,7 @@ class CableStayedForm:
                              "pylon top, harp stays evenly up the pylon)")
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""
         return {"type": self.type, **_fields(self)}
 
 
@@ -132,13 +134,13 @@ class SuspensionForm:
     Parameters
     ----------
     spacing : float, optional
-        Hanger spacing along the deck; rounded to divide the half span into
-        whole panels. [m]  Left out: the grid step span/divisions.
+        Hanger spacing along the deck, rounded to divide the half span into
+        whole panels; left out: the grid step span/divisions. [m]
     sag_ratio : float, optional
-        Main-cable sag over span. [-]  Left out: the sag is free (optimized).
+        Main-cable sag over span; left out: the sag is free (optimized). [-]
     tower_height : float, optional
-        Height of the tower tops (main-cable saddles) above the deck. [m]  Left
-        out: free (optimized within the rise of the design domain).
+        Height of the tower tops (main-cable saddles) above the deck; left
+        out: free (optimized within the rise of the design domain). [m]
     shape : {"funicular", "parabolic", "free"}
         Cable nodes on the funicular polygon of the form's own loads (deck load
         and self-weight), or on a parabola, with the sag as the one free
@@ -160,6 +162,7 @@ class SuspensionForm:
         _choice("form.shape", self.shape, SHAPES)
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""
         return {"type": self.type, **_fields(self)}
 
 
@@ -174,10 +177,10 @@ class ArchForm:
         bottom of the domain), or above it carrying it on hangers (springing at
         deck level).
     spacing : float, optional
-        Column or hanger spacing; rounded to divide the half span into whole
-        panels. [m]  Left out: the grid step span/divisions.
+        Column or hanger spacing, rounded to divide the half span into whole
+        panels; left out: the grid step span/divisions. [m]
     rise_ratio : float, optional
-        Arch rise (springing to crown) over span. [-]  Left out: free (optimized).
+        Arch rise (springing to crown) over span; left out: free (optimized). [-]
     shape : {"funicular", "parabolic", "free"}
         Rib nodes on the funicular polygon of the form's own loads, or on a
         parabola, with the rise as the one free parameter; or each rib node's
@@ -198,6 +201,7 @@ class ArchForm:
         _choice("form.shape", self.shape, SHAPES)
 
     def to_dict(self) -> dict:
+        """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""
         return {"type": self.type, **_fields(self)}
 
 
@@ -212,12 +216,33 @@ def _fields(spec) -> dict:
 
 
 def form_keys(form_type: str) -> tuple[str, ...]:
-    """Keys of the ``[form]`` table for ``form_type``, ``type`` first."""
+    """Keys of the ``[form]`` table for ``form_type``, ``type`` first.
+
+    Parameters
+    ----------
+    form_type : {"reference", "cable-stayed", "suspension", "arch"}
+        One of :data:`FORM_TYPES`.
+
+    Returns
+    -------
+    tuple of str
+    """
     return ("type",) + tuple(f.name for f in dataclasses.fields(_SPECS[form_type]))
 
 
 def parse_form(raw: object) -> FormSpec:
     """Check a ``[form]`` table (a mapping as TOML gives it) and return its spec.
+
+    Parameters
+    ----------
+    raw : mapping
+        The ``[form]`` table: ``type`` and that form's keys, values in the units
+        of ``docs/scenario.md``.
+
+    Returns
+    -------
+    FormSpec
+        The checked, frozen specification.
 
     Raises
     ------

@@ -21,7 +21,18 @@ __all__ = ["suspension_frame", "parabola"]
 
 
 def parabola(t) -> np.ndarray:
-    """2t - t^2: the shape of a half parabola from its end (t = 0) to its vertex (t = 1). [-]"""
+    """2t - t^2: the shape of a half parabola from its end (t = 0) to its vertex (t = 1). [-]
+
+    Parameters
+    ----------
+    t : array_like
+        Position along the half span over its length, 0 at the end, 1 at the vertex. [-]
+
+    Returns
+    -------
+    ndarray
+        Rise (or drop) over the total rise (or sag), 0 at the end, 1 at the vertex. [-]
+    """
     t = np.asarray(t, dtype=float)
     return 2.0 * t - t * t
 
@@ -35,6 +46,8 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
     Parameters
     ----------
     problem : Problem
+        The form's half-span problem; its line load is the deck, and a support
+        below the tower line holds the tower vertically.
     panels : int
         Hanger panels across the half span. [-]
     tower : float
@@ -54,8 +67,8 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
         clearance above the deck at mid-span, tower - sag); with a free shape
         it moves the tower top only. [m]
     height_bounds : (float, float), optional
-        Free shape: least and largest height of a cable node above the deck. [m]
-        The mid-span node moves only when ``sag_bounds`` is also given.
+        Free shape: least and largest height of a cable node above the deck; the
+        mid-span node moves only when ``sag_bounds`` is also given. [m]
 
     Returns
     -------

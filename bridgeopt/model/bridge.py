@@ -57,7 +57,11 @@ class BridgeScenario:
     deck_load : float
         Uniform load at deck level, deck self-weight and traffic. [N/m]
     material : Material
+        Material of the tension elements (and of the compression elements unless
+        ``compression_material`` is given).
     arrangement : {"repeating", "single"}
+        ``"repeating"``: the central span of a long run of equal spans (pier lines
+        held horizontally); ``"single"``: one span between anchored abutments.
     divisions : int
         Nodal divisions across the full span (even; the half model has half). [-]
     name : str
@@ -140,7 +144,13 @@ class BridgeScenario:
                        name=self.name)
 
     def normalised_volume(self, volume: float) -> float:
-        """volume / (deck_load * span^2 / tension strength). [-]"""
+        """volume / (deck_load * span^2 / tension strength). [-]
+
+        Parameters
+        ----------
+        volume : float
+            Material volume of the whole span. [m3]
+        """
         return volume * self.material.tension_strength / (self.deck_load * self.span ** 2)
 
     @property

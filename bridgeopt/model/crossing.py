@@ -39,7 +39,18 @@ __all__ = ["full_span_problem", "deck_extent"]
 
 
 def deck_extent(bridge: BridgeScenario) -> tuple[float, float]:
-    """x-coordinates of the deck's ends in the full-span model. [m]"""
+    """x-coordinates of the deck's ends in the full-span model. [m]
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing; only its span is used.
+
+    Returns
+    -------
+    (float, float)
+        x at the left and right deck ends, 0 and ``span``. [m]
+    """
     return (0.0, float(bridge.span))
 
 
@@ -87,6 +98,7 @@ def full_span_problem(bridge: BridgeScenario, *, piers=(), anchorages=(), channe
     Parameters
     ----------
     bridge : BridgeScenario
+        The crossing (span, rise, depth, divisions, deck load, materials, arrangement).
     piers : sequence of float
         x-coordinates of extra foundations at the bottom of the domain. [m]
     anchorages : sequence of (x, z)

@@ -43,6 +43,8 @@ def traffic_load(pattern: str, *, intensity: float, deck: tuple[float, float], z
     Parameters
     ----------
     pattern : {"full", "half", "central", "user"}
+        Which part of the deck is loaded: all of it, the ``side`` half, the central
+        half, or ``start`` to ``end``.
     intensity : float
         Traffic load per unit length, positive downwards. [N/m]
     deck : (float, float)
@@ -94,7 +96,9 @@ class LoadCase:
     name : str
         Label for reports (unique within a study).
     loads : tuple of PointLoad
+        Concentrated loads of this case, at grid nodes.
     line_loads : tuple of LineLoad
+        Line loads of this case (e.g. :func:`traffic_load`).
     """
 
     name: str
@@ -196,14 +200,30 @@ class CaseStudy:
                                  "(or permanent loads in the problem)")
 
     def case_loads(self, i: int) -> tuple[tuple[PointLoad, ...], tuple[LineLoad, ...]]:
-        """Point and line loads acting in case ``i`` (permanent loads included)."""
+        """Point and line loads acting in case ``i`` (permanent loads included).
+
+        Parameters
+        ----------
+        i : int
+            Index into ``cases``. [-]
+
+        Returns
+        -------
+        (tuple of PointLoad, tuple of LineLoad)
+        """
         c = self.cases[i]
         if self.permanent:
             return self.problem.loads + c.loads, self.problem.line_loads + c.line_loads
         return c.loads, c.line_loads
 
     def total_load(self, i: int) -> float:
-        """Sum of the magnitudes of the applied loads of case ``i``. [N]"""
+        """Sum of the magnitudes of the applied loads of case ``i``. [N]
+
+        Parameters
+        ----------
+        i : int
+            Position of the case in ``cases``. [-]
+        """
         loads, lines = self.case_loads(i)
         total = sum(math.hypot(*p.force) for p in loads)
         total += sum(abs(q.intensity) * (q.end[0] - q.start[0]) for q in lines)

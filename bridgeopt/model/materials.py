@@ -66,7 +66,13 @@ class Material:
         return self.density == 0
 
     def k(self, sense: str) -> float:
-        """Self-weight parameter rho*g/sigma for ``"tension"`` or ``"compression"``. [1/m]"""
+        """Self-weight parameter rho*g/sigma for ``"tension"`` or ``"compression"``. [1/m]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            Which design stress sigma divides the unit weight rho*g.
+        """
         sigma = self.tension_strength if sense == "tension" else self.compression_strength
         return self.density * GRAVITY / sigma
 
@@ -74,12 +80,23 @@ class Material:
         """Length sigma/(rho*g) of a bar that just carries its own weight. [m]
 
         Infinite for a weightless material.
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            A tie (tension design stress) or a strut (compression design stress).
         """
         k = self.k(sense)
         return math.inf if k == 0 else 1.0 / k
 
     def limiting_reach(self, sense: str) -> float:
-        """Largest horizontal reach pi*sigma/(rho*g) of an equal-strength element. [m]"""
+        """Largest horizontal reach pi*sigma/(rho*g) of an equal-strength element. [m]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            A hanging cable (tension) or a standing arch (compression).
+        """
         return math.pi * self.self_supporting_length(sense)
 
 
@@ -99,7 +116,17 @@ PRESETS: dict[str, Material] = {
 
 
 def material_from_name(name: str) -> Material:
-    """Return the preset called ``name``; raise :class:`InputError` otherwise."""
+    """Return the preset called ``name``; raise :class:`InputError` otherwise.
+
+    Parameters
+    ----------
+    name : str
+        Key of :data:`PRESETS` (``"steel"``, ``"cable-wire"`` ...).
+
+    Returns
+    -------
+    Material
+    """
     try:
         return PRESETS[name]
     except KeyError:

@@ -92,6 +92,11 @@ def polygon_area(pts) -> float:
     ----------
     pts : sequence of (x, z)
         Vertices in order. [m]
+
+    Returns
+    -------
+    float
+        Signed area; negative for a clockwise polygon. [m2]
     """
     v = np.asarray(pts, dtype=float)
     w = np.roll(v, -1, axis=0)
@@ -105,6 +110,11 @@ def crossing_edges(pts) -> tuple[int, int] | None:
     ----------
     pts : sequence of (x, z)
         Vertices in order (edge ``i`` runs from vertex ``i`` to ``i + 1``). [m]
+
+    Returns
+    -------
+    (int, int) or None
+        Indices of the two edges, or None for a simple polygon.
     """
     v = np.asarray(pts, dtype=float)
     n = len(v)

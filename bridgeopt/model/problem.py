@@ -183,8 +183,11 @@ class Problem:
         Material of the tension elements, and of the compression elements unless
         ``compression_material`` is given.
     supports : tuple of Support
+        Held points and the directions they are held in.
     loads : tuple of PointLoad
+        Concentrated loads at grid nodes.
     line_loads : tuple of LineLoad
+        Horizontal uniform line loads, lumped to the nodes along them.
     mirror_lines : tuple of float
         x-coordinates of vertical mirror (symmetry) lines on the domain's edge.
         Nodes on them are held horizontally (free horizontal reaction). [m]
@@ -242,17 +245,35 @@ class Problem:
         return self.material.weightless and self.compression.weightless
 
     def k(self, sense: str) -> float:
-        """Self-weight parameter rho*g/sigma of the elements of ``sense``. [1/m]"""
+        """Self-weight parameter rho*g/sigma of the elements of ``sense``. [1/m]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            Tension elements use ``material``, compression elements ``compression``.
+        """
         mat = self.material if sense == "tension" else self.compression
         return mat.k(sense)
 
     def strength(self, sense: str) -> float:
-        """Design stress of the elements of ``sense``. [Pa]"""
+        """Design stress of the elements of ``sense``. [Pa]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            The tension stress of ``material``, or the compression stress of ``compression``.
+        """
         return (self.material.tension_strength if sense == "tension"
                 else self.compression.compression_strength)
 
     def density(self, sense: str) -> float:
-        """Density of the elements of ``sense``. [kg/m3]"""
+        """Density of the elements of ``sense``. [kg/m3]
+
+        Parameters
+        ----------
+        sense : {"tension", "compression"}
+            Picks ``material`` (tension) or ``compression`` (compression elements).
+        """
         return (self.material if sense == "tension" else self.compression).density
 
     def total_applied_load(self) -> float:

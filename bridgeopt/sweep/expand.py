@@ -181,7 +181,18 @@ def _count(value: Any, path: tuple[str, ...]) -> int:
 
 
 def case_key(data: Mapping) -> str:
-    """A stable identifier of a case: a hash of its scenario dict (16 hex digits)."""
+    """A stable identifier of a case: a hash of its scenario dict (16 hex digits).
+
+    Parameters
+    ----------
+    data : mapping
+        The case as a scenario-file dict; key order does not matter.
+
+    Returns
+    -------
+    str
+        The first 16 hex digits of the SHA-256 of its sorted JSON.
+    """
     text = json.dumps(data, sort_keys=True, separators=(",", ":"), default=str)
     return hashlib.sha256(text.encode()).hexdigest()[:16]
 
@@ -190,6 +201,18 @@ def flatten(data: Mapping, prefix: str = "") -> dict[str, Any]:
     """A scenario dict as one level of dotted keys, as messages name them (``support[1].at``).
 
     Values that are lists (points, outlines) become JSON text.
+
+    Parameters
+    ----------
+    data : mapping
+        A scenario-file dict (tables nested as TOML gives them).
+    prefix : str
+        Put before every key (used for the nested tables).
+
+    Returns
+    -------
+    dict
+        Dotted key -> value.
     """
     out: dict[str, Any] = {}
     for key, value in data.items():
@@ -210,10 +233,10 @@ def flatten(data: Mapping, prefix: str = "") -> dict[str, Any]:
 class Case:
     """One combination of a sweep: a scenario-file dict and its stable key.
 
-    Attributes
+    Parameters
     ----------
     index : int
-        Position in the sweep (0-based).
+        Position in the sweep (0-based). [-]
     key : str
         :func:`case_key` of ``data``; finished keys are not run again.
     data : dict
@@ -234,13 +257,16 @@ class Case:
 class Sweep:
     """An expanded sweep file.
 
-    Attributes
+    Parameters
     ----------
     name : str
+        The sweep file's ``name`` (default ``"sweep"``).
     cases : tuple of Case
+        Every distinct combination, in case order.
     varied : tuple of str
         Dotted keys whose value differs between cases.
     source : str
+        Where the sweep was read from, for messages.
     """
 
     name: str
@@ -254,6 +280,18 @@ class Sweep:
 
 def expand_sweep(data: Mapping, *, source: str = "<dict>") -> Sweep:
     """Every case of a sweep file given as a dict (as :func:`tomllib.load` returns it).
+
+    Parameters
+    ----------
+    data : mapping
+        The sweep file: scenario tables in which any value may be a list of
+        values, and ``[[table]]`` alternatives; values in SI units (N, m, Pa).
+    source : str
+        Where the data came from, for messages.
+
+    Returns
+    -------
+    Sweep
 
     Raises
     ------
@@ -281,7 +319,17 @@ def expand_sweep(data: Mapping, *, source: str = "<dict>") -> Sweep:
 
 
 def load_sweep(path: str | Path) -> Sweep:
-    """Read a sweep file (TOML) and expand it; see :func:`expand_sweep`."""
+    """Read a sweep file (TOML) and expand it; see :func:`expand_sweep`.
+
+    Parameters
+    ----------
+    path : path
+        The sweep file (``.toml``).
+
+    Returns
+    -------
+    Sweep
+    """
     path = Path(path)
     data = read_toml(path, "sweep file")
     return expand_sweep(data, source=str(path))

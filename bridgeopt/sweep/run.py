@@ -49,22 +49,24 @@ SCHEDULER_ADDRESS = re.compile(r"^((tcp|tls|ucx|ws|wss|inproc)://[\w.\-\[\]:/]+|
 class SweepOutcome:
     """What one run of a sweep did.
 
-    Attributes
+    Parameters
     ----------
     total : int
-        Cases in the sweep.
+        Cases in the sweep. [-]
     skipped : int
-        Cases already finished by an earlier run (not run again).
+        Cases already finished by an earlier run (not run again). [-]
     ran : list of str
         Keys of the cases finished in this run, in the order they finished.
     failed : int
-        Cases of the sweep whose row is not ``ok`` (this run and earlier ones).
+        Cases of the sweep whose row is not ``ok`` (this run and earlier ones). [-]
     seconds : float
         Wall time of this run. [s]
     folder : Path
+        The sweep's output folder.
     workers : int
-        Worker slots used (processes, or Dask worker threads).
+        Worker slots used (processes, or Dask worker threads). [-]
     interrupted : bool
+        Whether the run was stopped (Ctrl-C) before every case finished.
     statuses : dict
         Cases of the sweep per row status (``ok``, ``input-error`` ...).
     first_error : str
@@ -249,7 +251,7 @@ def run_sweep(sweep: Sweep, folder: str | os.PathLike, *, jobs: int | None = Non
         Output folder: ``journal.jsonl``, ``results.csv``, ``results.parquet``,
         ``README.txt``.  Cases already in its journal are not run again.
     jobs : int, optional
-        Local worker processes (default: the number of CPUs).
+        Local worker processes (default: the number of CPUs). [-]
     scheduler : str, optional
         Address of a Dask distributed scheduler (``tcp://host:8786``): run the
         cases on that cluster instead of local processes.

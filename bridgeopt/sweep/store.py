@@ -75,6 +75,9 @@ class Journal:
     ----------
     folder : Path
         The sweep's output folder (created if missing).
+    lock : bool
+        Hold the folder's lock file while open, so that a second run writing to
+        the same folder at the same time is refused (:class:`InputError`).
     """
 
     def __init__(self, folder: str | os.PathLike, *, lock: bool = False) -> None:
@@ -132,11 +135,25 @@ class Journal:
         self._lock = fh
 
     def finished(self, *, failed_too: bool = True) -> set[str]:
-        """Keys of finished cases (with ``failed_too=False``, only those that succeeded)."""
+        """Keys of finished cases (with ``failed_too=False``, only those that succeeded).
+
+        Parameters
+        ----------
+        failed_too : bool
+            Count cases whose row is not ``ok`` as finished.
+        """
         return {k for k, r in self.rows.items() if failed_too or r.get("status") == "ok"}
 
     def append(self, key: str, row: dict) -> None:
-        """Record one finished case durably (flush and fsync before returning)."""
+        """Record one finished case durably (flush and fsync before returning).
+
+        Parameters
+        ----------
+        key : str
+            The case's :func:`~bridgeopt.sweep.expand.case_key`.
+        row : dict
+            Its result columns (non-finite numbers are stored as null).
+        """
         row = {k: _plain(v) for k, v in row.items()}
         try:
             if self._fh is None:
@@ -162,7 +179,21 @@ class Journal:
 
 
 def results_frame(sweep: Sweep, rows: dict[str, dict]):
-    """One row per finished case of ``sweep``, in case order: case, inputs, results."""
+    """One row per finished case of ``sweep``, in case order: case, inputs, results.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The expanded sweep (gives the case order and inputs).
+    rows : dict
+        Result row per case key (:attr:`Journal.rows`), columns of
+        ``RESULT_COLUMNS`` (volumes in m3, weights in N, times in s).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns ``case``, ``key``, the dotted inputs, then the result columns.
+    """
     import pandas as pd
 
     records = []
@@ -205,7 +236,15 @@ def _readme(sweep: Sweep) -> str:
 
 
 def write_tables(sweep: Sweep, journal: Journal) -> None:
-    """Rewrite ``results.csv``, ``results.parquet`` and ``README.txt`` from the journal."""
+    """Rewrite ``results.csv``, ``results.parquet`` and ``README.txt`` from the journal.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The expanded sweep.
+    journal : Journal
+        The sweep folder's journal; the tables are written beside it, atomically.
+    """
     import pyarrow as pa
     import pyarrow.parquet as pq
 

@@ -130,6 +130,19 @@ def span_volume_figure(table, *, title: str | None = None):
     x: span / (sigma/(rho g)) [-]; y: volume sigma / (deck_load span^2) [-],
     logarithmic.  A dotted line marks span = pi sigma/(rho g), the reach of a
     single equal-strength element.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        :func:`bridgeopt.study.trends.span_sweep` output (``normalised_span``,
+        ``normalised_volume``, ``span_m``, ``volume_m3``, ``status`` per option).
+    title : str, optional
+        Heading (default: "Volume against span (normalised)").
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Logarithmic volume axis; options that did not solve are listed in a note.
     """
     names = _names(table)
     fig = _base(title or "Volume against span (normalised)")
@@ -156,9 +169,19 @@ def ratio_figure(table, x: str = "normalised_span", *, title: str | None = None,
     table : pandas.DataFrame
         A sweep table (span, height or pylon).
     x : str
-        Column for the horizontal axis.
+        Column for the horizontal axis (``normalised_span``, ``span_to_rise``,
+        ``span_m`` ...).
+    title : str, optional
+        Heading (default: "Volume over the reference optimum").
+    x_title : str, optional
+        Title of the horizontal axis (default: the column's name).
     by_pylons : bool
         One line per (form, pylon count) (pylon sweep table).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        A dotted line marks the reference, ratio 1.
     """
     import plotly.graph_objects as go
 
@@ -197,9 +220,16 @@ def height_figure(table, *, title: str | None = None, normalised: bool = False):
     Parameters
     ----------
     table : pandas.DataFrame
-        :func:`bridgeopt.study.options.height_sweep` output.
+        :func:`bridgeopt.study.trends.height_sweep` output.
+    title : str, optional
+        Heading (default: "Volume as the allowed rise above the deck is cut").
     normalised : bool
         Plot normalised volume instead of m3.
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Horizontal axis span / allowed rise [-]; common-practice bands shaded.
     """
     names = _names(table)
     y = "normalised_volume" if normalised else "volume_m3"
@@ -222,7 +252,21 @@ def height_figure(table, *, title: str | None = None, normalised: bool = False):
 
 
 def pylon_figure(table, *, title: str | None = None):
-    """Volume against span for each form and pylon count (pylon sweep table)."""
+    """Volume against span for each form and pylon count (pylon sweep table).
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        :func:`bridgeopt.study.trends.pylon_sweep` output (``span_m``, ``pylons``,
+        ``volume_m3``, ``status`` per option).
+    title : str, optional
+        Heading (default: "Volume against span by pylon count").
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Span [m] against volume [m3], logarithmic.
+    """
     import plotly.graph_objects as go
 
     fig = _base(title or "Volume against span by pylon count")

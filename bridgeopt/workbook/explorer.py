@@ -39,6 +39,7 @@ class Explorer:
     material : str
         A key of :data:`bridgeopt.PRESETS`.
     arrangement : {"single", "repeating"}
+        One span between anchored abutments, or the central span of a long run.
     form : str
         Form compared with the reference optimum.
     pylons : int

@@ -84,12 +84,22 @@ def _flag(name: str) -> bool:
 
 
 def fast_mode() -> bool:
-    """True when ``BRIDGEOPT_FAST`` is set (tests: coarse grids, few sweep points)."""
+    """True when ``BRIDGEOPT_FAST`` is set (tests: coarse grids, few sweep points).
+
+    Returns
+    -------
+    bool
+    """
     return _flag("BRIDGEOPT_FAST")
 
 
 def report_mode() -> bool:
-    """True when ``BRIDGEOPT_REPORT`` is set (static figures, no live widgets)."""
+    """True when ``BRIDGEOPT_REPORT`` is set (static figures, no live widgets).
+
+    Returns
+    -------
+    bool
+    """
     return _flag("BRIDGEOPT_REPORT")
 
 
@@ -105,6 +115,11 @@ def param(name: str, default: Any, fast: Any = None) -> Any:
         numbers written comma-separated) converts the environment text.
     fast : object, optional
         Value used in :func:`fast_mode` when the environment does not set one.
+
+    Returns
+    -------
+    object
+        Of the type of ``default``, in the notebook's (SI) unit for it: m, N/m ...
 
     Raises
     ------
@@ -122,7 +137,17 @@ def param(name: str, default: Any, fast: Any = None) -> Any:
 
 
 def error_text(err: BaseException) -> str:
-    """One readable line for ``err``."""
+    """One readable line for ``err``.
+
+    Parameters
+    ----------
+    err : BaseException
+        Any error; :class:`SolveError` and :class:`InputError` get their own wording.
+
+    Returns
+    -------
+    str
+    """
     if isinstance(err, SolveError):
         return f"The solve failed ({err.status}): {err.message}"
     if isinstance(err, InputError):
@@ -133,20 +158,48 @@ def error_text(err: BaseException) -> str:
 
 
 def message_html(text: str, kind: str = "error") -> str:
-    """``text`` as a boxed HTML paragraph (``kind``: "error", "note" or "ok")."""
+    """``text`` as a boxed HTML paragraph.
+
+    Parameters
+    ----------
+    text : str
+        Plain text (HTML-escaped here).
+    kind : {"error", "note", "ok"}
+        Colour of the box: rust, blue or green.
+
+    Returns
+    -------
+    str
+    """
     colour = {"error": "#9a3412", "note": "#1f5c99", "ok": "#2f6b3a"}.get(kind, "#333333")
     return (f'<div class="bridgeopt-{kind}" style="border-left:4px solid {colour};'
             f'padding:4px 10px;margin:4px 0;color:{colour}">{html.escape(text)}</div>')
 
 
 def cautions_html() -> str:
-    """The cautions as an HTML block."""
+    """The cautions as an HTML block.
+
+    Returns
+    -------
+    str
+        An HTML ``<div>`` holding the list of :data:`~bridgeopt.cautions.CAUTION_LINES`.
+    """
     items = "".join(f"<li>{html.escape(c)}</li>" for c in CAUTION_LINES)
     return f'<div class="bridgeopt-cautions"><b>Cautions</b><ul>{items}</ul></div>'
 
 
 def forms_note(forms) -> str:
-    """HTML note naming the forms of ``forms`` that are not available yet ("" if none)."""
+    """HTML note naming the forms of ``forms`` that are not available yet ("" if none).
+
+    Parameters
+    ----------
+    forms : iterable of str
+        Form names as a study lists them (``"cable-stayed"``, ``"suspension"`` ...).
+
+    Returns
+    -------
+    str
+    """
     from bridgeopt.study.options import FORM_SOLVERS
 
     missing = [f for f in forms if f not in FORM_SOLVERS]
@@ -158,7 +211,20 @@ def forms_note(forms) -> str:
 
 
 def scenario_html(bridge, source: str | os.PathLike | None = None) -> str:
-    """One paragraph stating the scenario of a report, with units."""
+    """One paragraph stating the scenario of a report, with units.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing of the report (span, rise, depth, deck load, material).
+    source : path, optional
+        The scenario file, named at the end of the paragraph.
+
+    Returns
+    -------
+    str
+        An HTML ``<p>``; lengths in m, deck load in kN/m, stress in MPa.
+    """
     kind = {"single": "a single span between anchored abutments",
             "repeating": "one span of a long run of equal spans"}.get(bridge.arrangement,
                                                                       bridge.arrangement)
@@ -173,14 +239,36 @@ def scenario_html(bridge, source: str | os.PathLike | None = None) -> str:
 
 
 def number(value) -> str:
-    """A table cell: numbers to 6 significant figures with thousands separators."""
+    """A table cell: numbers to 6 significant figures with thousands separators.
+
+    Parameters
+    ----------
+    value : object
+        The cell's value; anything but an int or a float is shown as ``str(value)``.
+
+    Returns
+    -------
+    str
+    """
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         return str(value)
     return f"{value:,.6g}" if isinstance(value, float) else f"{value:,d}"
 
 
 def results_html(table) -> str:
-    """The comparison's headline numbers as a sentence per option."""
+    """The comparison's headline numbers as a sentence per option.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        :func:`bridgeopt.study.options.compare` output (``volume_m3``, ``weight_N``,
+        ``ratio_to_reference``, ``status`` per option).
+
+    Returns
+    -------
+    str
+        An HTML list; volumes in m3, weights in kN.
+    """
     from bridgeopt.study.options import REFERENCE
 
     items = []
@@ -197,7 +285,13 @@ def results_html(table) -> str:
 
 
 def show(obj) -> None:
-    """Display a figure, table or HTML text in the current output."""
+    """Display a figure, table or HTML text in the current output.
+
+    Parameters
+    ----------
+    obj : object
+        A plotly figure, a pandas table, a widget, or a string of HTML.
+    """
     from IPython.display import HTML, display
 
     display(HTML(obj) if isinstance(obj, str) else obj)
@@ -215,6 +309,20 @@ def sweep(fn: Callable, *args, description: str = "solving", **kwargs):
     shown and advanced by the ``progress(done, total)`` callback.  A
     :class:`~bridgeopt.errors.BridgeoptError` is shown as a message and
     re-raised.
+
+    Parameters
+    ----------
+    fn : callable
+        A study function taking ``progress=callback`` (``span_sweep`` ...).
+    *args, **kwargs
+        Passed to ``fn``.
+    description : str
+        Label of the progress bar.
+
+    Returns
+    -------
+    object
+        What ``fn`` returns.
     """
     from IPython.display import HTML, display
 
@@ -245,7 +353,18 @@ def sweep(fn: Callable, *args, description: str = "solving", **kwargs):
 def export_button(notebook: str | os.PathLike, output: str | os.PathLike):
     """A button that runs ``bridgeopt report NOTEBOOK -o OUTPUT`` and says where the file is.
 
-    Returns ``None`` in :func:`report_mode` (a report has no buttons).
+    Parameters
+    ----------
+    notebook : path
+        The study notebook to execute.
+    output : path
+        The HTML file to write.
+
+    Returns
+    -------
+    ipywidgets.VBox or None
+        The button and its status line; ``None`` in :func:`report_mode` (a report
+        has no buttons).
     """
     if report_mode():
         return None

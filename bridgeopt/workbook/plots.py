@@ -45,7 +45,18 @@ _MIN_WIDTH, _MAX_WIDTH, _LEVELS = 1.0, 11.0, 8
 
 
 def option_style(index: int) -> dict:
-    """Colour and dash of the ``index``-th option in a chart (0 = the reference)."""
+    """Colour and dash of the ``index``-th option in a chart (0 = the reference).
+
+    Parameters
+    ----------
+    index : int
+        Position of the option; colours and dashes repeat beyond the palette. [-]
+
+    Returns
+    -------
+    dict
+        ``{"color": ..., "dash": ...}`` for a plotly line.
+    """
     return {"color": OPTION_COLOURS[index % len(OPTION_COLOURS)],
             "dash": _DASHES[index % len(_DASHES)]}
 
@@ -154,7 +165,9 @@ def design_figure(design, *, title: str | None = None, width_by: str = "force",
     Parameters
     ----------
     design : Design
+        A solved design; curved members are drawn along their centrelines.
     title : str, optional
+        Heading of the figure (default: none).
     width_by : {"force", "volume"}
         Line width in proportion to the member force or volume.
     full_span : bool
@@ -189,6 +202,10 @@ def options_figure(options: Mapping[str, object], *, width_by: str = "force",
         shown as an empty panel with its message.
     width_by : {"force", "volume"}
         Line widths share one scale over all panels.
+    height_per_panel : int
+        Height of each option's panel. [px]
+    title : str, optional
+        Heading of the figure (default: none).
 
     Returns
     -------
@@ -240,6 +257,8 @@ def ratio_bar(table, *, title: str | None = "Volume against the reference optimu
     ----------
     table : pandas.DataFrame
         :func:`bridgeopt.study.options.compare` output.
+    title : str, optional
+        Heading of the chart (None: none).
 
     Returns
     -------
@@ -279,6 +298,17 @@ def cases_figure(design, *, title: str | None = None):
     ``design`` is a :class:`~bridgeopt.solver.multicase.CaseDesign` (straight members,
     self-weight lumped at their ends); line width follows the member's area.
     Never solves.
+
+    Parameters
+    ----------
+    design : CaseDesign
+        A solved multi-case design (:func:`~bridgeopt.solver.multicase.optimize_cases`).
+    title : str, optional
+        Heading (default: the design's volume in m3).
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
     """
     import plotly.graph_objects as go
 

@@ -54,6 +54,16 @@ def remote_references(html_text: str) -> list[str]:
     Looks at the page's tags and styles (``src``, ``href``, ``@import``,
     ``url(...)``); the bodies of inline scripts are skipped (plotly.js names
     web addresses in strings it never fetches unless asked to).
+
+    Parameters
+    ----------
+    html_text : str
+        An HTML page.
+
+    Returns
+    -------
+    list of str
+        Each reference with some text around it ([] for a self-contained page).
     """
     page = _SCRIPT_BODY.sub(r"\1\2", html_text)
     return [page[max(0, m.start() - 20):m.end() + 60] for m in _REMOTE.finditer(page)]
@@ -75,6 +85,13 @@ def execute_notebook(path: str | os.PathLike, *, parameters: Mapping[str, object
         Run in report mode (static figures).
     timeout : int
         Per-cell time limit. [s]
+    extra_env : mapping of str to str, optional
+        More environment variables for the kernel, set last.
+
+    Returns
+    -------
+    nbformat.NotebookNode
+        The notebook with its outputs.
 
     Raises
     ------
@@ -122,6 +139,21 @@ def execute_notebook(path: str | os.PathLike, *, parameters: Mapping[str, object
 def export_html(nb, *, show_code: bool = False, title: str | None = None) -> str:
     """An executed notebook as one self-contained HTML page.
 
+    Parameters
+    ----------
+    nb : nbformat.NotebookNode
+        An executed notebook (:func:`execute_notebook`); it is not modified.
+    show_code : bool
+        Keep the code cells (default: outputs and text only).
+    title : str, optional
+        Title of the page (default: the notebook's).
+
+    Returns
+    -------
+    str
+        The HTML page, plotly.js inline; the cautions are added first when the
+        notebook's text does not carry them.
+
     Raises
     ------
     SolveError
@@ -157,6 +189,20 @@ def write_report(notebook: str | os.PathLike, output: str | os.PathLike, *,
                  parameters: Mapping[str, object] | None = None, show_code: bool = False,
                  timeout: int = 600) -> Path:
     """Execute ``notebook`` and write its self-contained HTML report to ``output``.
+
+    Parameters
+    ----------
+    notebook : path
+        The study notebook (``studies/*.ipynb``).
+    output : path
+        The HTML file to write (its folder must exist).
+    parameters : mapping, optional
+        Overrides of the notebook's ``parameters`` cell (see :func:`execute_notebook`),
+        in the units the notebook states (SI: m, N/m).
+    show_code : bool
+        Keep the code cells in the report.
+    timeout : int
+        Per-cell time limit. [s]
 
     Returns
     -------
