@@ -32,6 +32,9 @@ class InputError(BridgeoptError, ValueError):
         (``"> 0 m"``, ``"one of 'x', 'z', 'xz'"``).
     """
 
+    #: The file the value was read from, when not the command's main input file.
+    source: str | None = None
+
     def __init__(self, field: str, value: object, valid: str) -> None:
         self.field = field
         self.value = value

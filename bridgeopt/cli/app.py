@@ -121,7 +121,7 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as stop:
         return stop.code if isinstance(stop.code, int) else EXIT_INPUT
     except InputError as err:
-        where = getattr(args, "file", None) if "args" in locals() else None
+        where = err.source or (getattr(args, "file", None) if "args" in locals() else None)
         if err.field == "file" or err.field.startswith("-"):
             where = None
         say_error(f"{err}" + (f" (in {where})" if where else ""))

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 import os
 import sys
 from pathlib import Path
@@ -10,6 +11,7 @@ from pathlib import Path
 from bridgeopt import __version__
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.errors import InputError
+from bridgeopt.files.io import written_by_bridgeopt
 from bridgeopt.files.scenario import Scenario
 from bridgeopt.model.materials import GRAVITY, Material
 from bridgeopt.solver.design import Design
@@ -22,15 +24,20 @@ __all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EXIT_SOLVE", "say_error", 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT, EXIT_SOLVE = 0, 1, 2, 3
 
 
+#: Terminal colour and cursor codes (a kernel's traceback carries them): never in our lines.
+_ANSI = re.compile(r"\x1b\[[0-9;?]*[ -/]*[@-~]")
+
+
 def say_error(message: str) -> None:
-    """Print ``bridgeopt: error: MESSAGE`` on stderr, on one line.
+    """Print ``bridgeopt: error: MESSAGE`` on stderr, on one line, without colour codes.
 
     Parameters
     ----------
     message : str
         The error; runs of white space (line breaks included) become one space.
     """
-    print("bridgeopt: error: " + " ".join(str(message).split()), file=sys.stderr)
+    text = _ANSI.sub("", str(message))
+    print("bridgeopt: error: " + " ".join(text.split()), file=sys.stderr)
 
 
 def number_text(value: float, digits: int = 5) -> str:
@@ -259,13 +266,17 @@ def format_summary(scenario: Scenario, design: Design, wall_seconds: float | Non
     return "\n".join(lines)
 
 
-def check_json_target(path: str | None) -> Path | None:
+def check_json_target(path: str | None, *, force: bool = False) -> Path | None:
     """Fail before the solve when the JSON cannot be written where asked.
+
+    An existing file is replaced only when bridgeopt wrote it, or with ``force``.
 
     Parameters
     ----------
     path : str, optional
         The ``--json`` argument (None when not given).
+    force : bool
+        Replace an existing file bridgeopt did not write.
 
     Returns
     -------
@@ -275,7 +286,8 @@ def check_json_target(path: str | None) -> Path | None:
     Raises
     ------
     InputError
-        A directory, a missing or a read-only parent directory.
+        A directory, a missing or a read-only parent directory, or a file of the user's
+        (without ``force``).
     """
     if path is None:
         return None
@@ -283,6 +295,9 @@ def check_json_target(path: str | None) -> Path | None:
     parent = out.parent if str(out.parent) else Path(".")
     if out.is_dir():
         raise InputError("--json", path, "a file path, not a directory")
+    if out.exists() and not force and not written_by_bridgeopt(out):
+        raise InputError("--json", path, "a new file, or a JSON file bridgeopt wrote (this one "
+                         "exists and is not bridgeopt output; add --force to replace it)")
     if not parent.is_dir():
         raise InputError("--json", path, f"a path in an existing directory ({parent} does not "
                          "exist)")

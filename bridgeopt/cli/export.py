@@ -14,14 +14,15 @@ from bridgeopt.files.scenario import load_scenario
 
 __all__ = ["add_export"]
 
+
 def run_export(args) -> int:
-    from bridgeopt.files.export import export_design, parse_formats, read_design_json
+    from bridgeopt.files.export import (check_export_target, export_design, parse_formats,
+                                        read_design_json)
 
     t0 = time.perf_counter()
     formats = parse_formats(args.formats)
     out = Path(args.output)
-    if out.exists() and not out.is_dir():
-        raise InputError("--output", str(out), "a folder (created if missing), not a file")
+    check_export_target(out, formats, force=args.force)  # before the solve
     scenario = form = None
     if Path(args.file).suffix.lower() == ".json":
         design = read_design_json(args.file)
@@ -35,6 +36,7 @@ def run_export(args) -> int:
                  if form is not None else ""))
     try:
         written = export_design(design, out, formats, scenario=scenario, form=form,
+                                force=args.force,
                                 wall_seconds=time.perf_counter() - t0)
     except OSError as err:
         raise InputError("--output", str(out), f"a writable folder ({err.strerror})") from None
@@ -56,4 +58,6 @@ def add_export(sub) -> None:
                    help="comma-separated: csv, json, svg, dxf (default: all)")
     p.add_argument("--geometry-optimization", action="store_true",
                    help="rationalise the layout first (as solve --geometry-optimization)")
+    p.add_argument("--force", action="store_true",
+                   help="replace files at the export's names that bridgeopt did not write")
     p.set_defaults(func=run_export)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from bridgeopt import __version__
 from bridgeopt.cli.common import EXIT_OK, check_json_target, format_inputs
+from bridgeopt.errors import InputError
 from bridgeopt.files.scenario import load_scenario
 
 __all__ = ["add_judge"]
@@ -13,8 +14,13 @@ def run_judge(args) -> int:
     from bridgeopt.files.proposal import read_proposal
 
     scenario = load_scenario(args.file)
-    proposal = read_proposal(args.layout, args.members)
-    judgement = judge_proposal(judge_problem(scenario), proposal)
+    try:
+        proposal = read_proposal(args.layout, args.members)
+        judgement = judge_proposal(judge_problem(scenario), proposal)
+    except InputError as err:
+        if err.field.startswith(("nodes", "members", "layout")) or err.field.endswith("columns"):
+            err.source = args.layout   # the layout's own fields: name its file, not the scenario's
+        raise
     print(f"bridgeopt {__version__}: {scenario.name} ({scenario.kind} scenario): a proposed "
           "layout judged against the reference optimum")
     print(f"  source: {scenario.source}")
@@ -27,7 +33,7 @@ def run_judge(args) -> int:
         data.update({"reference_volume": judgement.reference_volume,
                      "volume_ratio": judgement.ratio, "proposal": judgement.proposal.source,
                      "excess": judgement.excess.to_dict(orient="records")})
-        write_json(check_json_target(args.json), data)
+        write_json(check_json_target(args.json, force=args.force), data)
         print(f"JSON written to {args.json}")
     return EXIT_OK
 
@@ -54,4 +60,6 @@ def add_judge(sub) -> None:
     p.add_argument("--top", type=int, default=5, metavar="N",
                    help="members listed by excess (default 5)")
     p.add_argument("--json", metavar="OUT.json", help="also write the sized proposal as JSON")
+    p.add_argument("--force", action="store_true",
+                   help="replace an existing --json file even if bridgeopt did not write it")
     p.set_defaults(func=run_judge)

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import time
+from pathlib import Path
 
 from bridgeopt import __version__
 from bridgeopt.cautions import CAUTIONS
@@ -12,6 +13,7 @@ from bridgeopt.errors import InputError
 __all__ = ["add_report"]
 
 def run_report(args) -> int:
+    from bridgeopt.workbook.params import check_parameters
     from bridgeopt.workbook.report import write_report
 
     params = {}
@@ -20,6 +22,8 @@ def run_report(args) -> int:
         if not sep or not name.strip():
             raise InputError("--param", item, "NAME=VALUE, e.g. span=2400")
         params[name.strip()] = value
+    if params and Path(args.notebook).is_file():
+        check_parameters(args.notebook, params)   # before the notebook runs
     t0 = time.perf_counter()
     out = write_report(args.notebook, args.output, parameters=params, show_code=args.show_code,
                        timeout=args.timeout)

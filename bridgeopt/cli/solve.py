@@ -52,7 +52,7 @@ def solve_design(scenario: Scenario, *, geometry_optimization: bool = False):
 
 
 def solve_and_report(scenario: Scenario, args, t0: float) -> int:
-    out = check_json_target(args.json)
+    out = check_json_target(args.json, force=args.force)
     if args.full_ground_structure:
         scenario = scenario.with_solve(member_adding=False)
     scenario, design, form = solve_design(scenario,
@@ -119,6 +119,8 @@ def add_solve_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--geometry-optimization", action="store_true",
                    help="then move, merge and prune the nodes for a cleaner, lighter layout "
                         "(same as [solve] geometry_optimization = true)")
+    p.add_argument("--force", action="store_true",
+                   help="replace an existing --json file even if bridgeopt did not write it")
 
 
 def run_solve(args) -> int:

@@ -8,7 +8,7 @@ from pathlib import Path
 
 from bridgeopt import __version__
 from bridgeopt.cautions import CAUTIONS
-from bridgeopt.cli.common import EXIT_INPUT, EXIT_OK, EXIT_SOLVE, say_error
+from bridgeopt.cli.common import EXIT_INPUT, EXIT_INTERNAL, EXIT_OK, EXIT_SOLVE, say_error
 from bridgeopt.errors import InputError
 
 __all__ = ["SweepProgress", "add_sweep"]
@@ -90,6 +90,11 @@ def run_sweep_command(args) -> int:
         say_error(f"interrupted: {outcome.total - outcome.skipped - len(outcome.ran)} case(s) "
                    "not run; run the same command again to finish them")
         return 130
+    broken = outcome.statuses.get("error", 0)
+    if broken and outcome.failed != outcome.total:
+        say_error(f"{broken} case(s) ended with status 'error' (an internal error, or the case "
+                  "stopped its worker: killed or out of memory); see the error column")
+        return EXIT_INTERNAL
     if outcome.total and outcome.failed == outcome.total:
         say_error(f"every case failed; the first: {outcome.first_error}")
         return EXIT_INPUT if set(outcome.statuses) == {"input-error"} else EXIT_SOLVE

@@ -20,6 +20,9 @@
 from __future__ import annotations
 
 import math
+import os
+import shutil
+import tempfile
 from pathlib import Path
 from typing import Iterable
 
@@ -108,9 +111,55 @@ def _readme(design: Design, formats) -> str:
     return "\n".join(lines) + "\n"
 
 
+#: The list of files an export wrote into its folder (so that a later export may replace them).
+EXPORT_RECORD = ".bridgeopt-export"
+
+
+def _names(formats) -> list[str]:
+    return [n for f in formats for n in FORMATS[f]] + ["README.txt"]
+
+
+def check_export_target(folder: str | Path, formats: Iterable[str] = tuple(FORMATS), *,
+                        force: bool = False) -> None:
+    """Refuse, before any solve, an export that would replace files bridgeopt did not write.
+
+    Parameters
+    ----------
+    folder : path
+        The export folder (need not exist).
+    formats : iterable of {"csv", "json", "svg", "dxf"}
+    force : bool
+        Replace such files all the same.
+
+    Raises
+    ------
+    InputError
+        Naming ``--output``: the folder is a file, or holds files of the user's at the
+        names the export writes (without ``force``).
+    """
+    folder = Path(folder)
+    if folder.exists() and not folder.is_dir():
+        raise InputError("--output", str(folder), "a folder (created if missing), not a file")
+    if force or not folder.is_dir():
+        return
+    record = folder / EXPORT_RECORD
+    ours = set(record.read_text(encoding="utf-8").split()) if record.is_file() else set()
+    foreign = [n for n in _names(parse_formats(formats)) if (folder / n).exists() and n not in ours]
+    if foreign:
+        raise InputError("--output", str(folder), "a folder without files of your own at the "
+                         f"names the export writes (found {', '.join(foreign)}, not written by "
+                         "bridgeopt; choose another folder or add --force to replace them)")
+
+
 def export_design(design: Design, folder: str | Path, formats: Iterable[str] = tuple(FORMATS),
-                  *, scenario=None, form=None, wall_seconds: float | None = None) -> list[Path]:
+                  *, scenario=None, form=None, wall_seconds: float | None = None,
+                  force: bool = False) -> list[Path]:
     """Write ``design`` into ``folder`` in ``formats`` (see the module docstring).
+
+    All or nothing: every file is written into a temporary folder inside ``folder``
+    first and moved into place only when all of them are written, so a failure
+    leaves the folder as it was.  Files the user made are never replaced without
+    ``force`` (see :func:`check_export_target`).
 
     Parameters
     ----------
@@ -126,6 +175,8 @@ def export_design(design: Design, folder: str | Path, formats: Iterable[str] = t
         A solved bridge form, for the JSON's form keys and reference volume.
     wall_seconds : float, optional
         Total solve time, recorded in the JSON's stats. [s]
+    force : bool
+        Replace files at the export's names that bridgeopt did not write.
 
     Returns
     -------
@@ -134,22 +185,31 @@ def export_design(design: Design, folder: str | Path, formats: Iterable[str] = t
     """
     formats = parse_formats(formats)
     folder = Path(folder)
+    check_export_target(folder, formats, force=force)
     folder.mkdir(parents=True, exist_ok=True)
-    written = []
-    if "csv" in formats:
-        members_table(design).to_csv(folder / "members.csv", index=False)
-        nodes_table(design).to_csv(folder / "nodes.csv", index=False)
-        written += [folder / "members.csv", folder / "nodes.csv"]
-    if "json" in formats:
-        written.append(write_json(folder / "design.json", design_to_dict(
-            design, scenario=scenario, wall_seconds=wall_seconds, form=form)))
-    if "svg" in formats:
-        written.append(write_svg(design, folder / "design.svg"))
-    if "dxf" in formats:
-        written.append(write_dxf(design, folder / "design.dxf"))
-    (folder / "README.txt").write_text(_readme(design, formats), encoding="utf-8")
-    written.append(folder / "README.txt")
-    return written
+    names = _names(formats)
+    tmp = Path(tempfile.mkdtemp(dir=folder, prefix=".bridgeopt-export-"))
+    try:
+        if "csv" in formats:
+            members_table(design).to_csv(tmp / "members.csv", index=False)
+            nodes_table(design).to_csv(tmp / "nodes.csv", index=False)
+        if "json" in formats:
+            write_json(tmp / "design.json", design_to_dict(
+                design, scenario=scenario, wall_seconds=wall_seconds, form=form))
+        if "svg" in formats:
+            write_svg(design, tmp / "design.svg")
+        if "dxf" in formats:
+            write_dxf(design, tmp / "design.dxf")
+        (tmp / "README.txt").write_text(_readme(design, formats), encoding="utf-8")
+        record = folder / EXPORT_RECORD
+        ours = set(record.read_text(encoding="utf-8").split()) if record.is_file() else set()
+        (tmp / EXPORT_RECORD).write_text("\n".join(sorted(ours | set(names))) + "\n",
+                                         encoding="utf-8")
+        for name in [*names, EXPORT_RECORD]:
+            os.replace(tmp / name, folder / name)
+    finally:
+        shutil.rmtree(tmp, ignore_errors=True)
+    return [folder / n for n in names]
 
 
 def _problem_of(inputs: dict):
@@ -192,8 +252,31 @@ def design_from_dict(data: dict) -> Design:
             "bridgeopt.design/"):
         raise InputError("design", "not a design", "the JSON of a solve (schema "
                          "bridgeopt.design/1, written by bridgeopt solve --json or export)")
+    try:
+        return _design_from_dict(data)
+    except InputError:
+        raise
+    except KeyError as err:
+        raise InputError(f"design JSON key {err.args[0]!r}", "<missing>", "present, as "
+                         "bridgeopt wrote it (the file was edited or cut short)") from None
+    except (TypeError, ValueError, IndexError, AttributeError) as err:
+        raise InputError("design JSON", "not as bridgeopt wrote it", "the JSON of a solve, "
+                         f"unedited ({type(err).__name__}: {err})") from None
+
+
+def _design_from_dict(data: dict) -> Design:
     nodes = np.array([[n["x"], n["z"]] for n in data["nodes"]], dtype=float).reshape(-1, 2)
+    bad = np.nonzero(~np.isfinite(nodes).all(axis=1))[0]
+    if len(bad):
+        i = int(bad[0])
+        raise InputError(f"design JSON nodes[{i}]", data["nodes"][i], "finite x and z in m")
     ms = data["members"]
+    for i, m in enumerate(ms):
+        for end in ("start", "end"):
+            v = m[end]
+            if isinstance(v, bool) or not isinstance(v, int) or not 0 <= v < len(nodes):
+                raise InputError(f"design JSON members[{i}].{end}", v,
+                                 f"a node index from 0 to {len(nodes) - 1}")
     members = Members(
         start=np.array([m["start"] for m in ms], dtype=np.int64),
         end=np.array([m["end"] for m in ms], dtype=np.int64),

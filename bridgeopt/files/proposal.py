@@ -28,7 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from bridgeopt.errors import InputError
-from bridgeopt.files.io import read_json
+from bridgeopt.files.io import read_input_bytes, read_json
 
 __all__ = ["Proposal", "read_proposal", "proposal_from_dict", "SENSES"]
 
@@ -98,6 +98,11 @@ def _coordinate(value, field: str) -> float:
     return v
 
 
+#: Largest coordinate of a proposed node: far beyond any crossing, well inside what double
+#: precision resolves to a millimetre. [m]
+MAX_COORDINATE = 1.0e7
+
+
 def _build(ids, xz, members, source: str) -> Proposal:
     """members: (start id, end id, group, sense, field prefix) tuples."""
     index: dict[str, int] = {}
@@ -110,6 +115,11 @@ def _build(ids, xz, members, source: str) -> Proposal:
     if not members:
         raise InputError("members", 0, "at least 1 member")
     xz = np.array(xz, dtype=float).reshape(-1, 2)
+    far = np.nonzero(~(np.abs(xz) <= MAX_COORDINATE).all(axis=1))[0]
+    if len(far):
+        i = int(far[0])
+        raise InputError(f"nodes[{i}]", [float(v) for v in xz[i]], f"finite x and z within "
+                         f"+-{MAX_COORDINATE:g} m (node {ids[i]})")
     tol = 1e-9 * max(float(np.ptp(xz, axis=0).max()), 1.0)
     order = np.lexsort((xz[:, 1], xz[:, 0]))
     close = np.nonzero(np.hypot(*np.diff(xz[order], axis=0).T) <= tol)[0]
@@ -198,12 +208,14 @@ def proposal_from_dict(data, *, source: str = "<dict>") -> Proposal:
 
 
 def _read_csv(path: Path, required: tuple[str, ...], what: str):
+    import io
+
     import pandas as pd
 
+    data = read_input_bytes(path, f"{what} CSV file")
     try:
-        df = pd.read_csv(path, comment="#", dtype=str, keep_default_na=False)
-    except FileNotFoundError:
-        raise InputError("file", str(path), f"an existing {what} CSV file") from None
+        df = pd.read_csv(io.BytesIO(data), comment="#", dtype=str, keep_default_na=False,
+                         encoding="utf-8")
     except (OSError, UnicodeDecodeError, pd.errors.ParserError,
             pd.errors.EmptyDataError) as err:
         raise InputError("file", str(path), f"a readable {what} CSV file ({err})") from None

@@ -20,6 +20,8 @@ import math
 from dataclasses import dataclass
 
 from bridgeopt.errors import InputError
+from bridgeopt.model.limits import (DECK_LOAD, DENSITY, HEIGHT_PER_SPAN, SPAN, STRENGTH,
+                                    checked_number, checked_whole)
 from bridgeopt.model.materials import Material
 from bridgeopt.model.problem import Domain, LineLoad, Problem, Support
 
@@ -28,11 +30,16 @@ __all__ = ["ARRANGEMENTS", "BridgeScenario"]
 ARRANGEMENTS = ("repeating", "single")
 
 
-def _positive(field: str, value, unit: str, *, zero_ok: bool = False) -> float:
-    ok = isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
-    if not ok or value < 0 or (value == 0 and not zero_ok):
-        raise InputError(field, value, f"a finite number {'>=' if zero_ok else '>'} 0 {unit}")
-    return float(value)
+def _bridge_material(field: str, value: object) -> None:
+    """A bridge's material must be a :class:`Material` within the practical ranges."""
+    if not isinstance(value, Material):
+        raise InputError(field, value, "a Material, e.g. PRESETS['steel'] or "
+                         "material_from_name('steel')")
+    for name in ("tension_strength", "compression_strength"):
+        checked_number(f"{field}.{name}", getattr(value, name), low=STRENGTH[0],
+                       high=STRENGTH[1], unit="Pa")
+    checked_number(f"{field}.density", value.density, low=DENSITY[0], high=DENSITY[1],
+                   unit="kg/m3", zero_ok=True)
 
 
 @dataclass(frozen=True)
@@ -74,16 +81,29 @@ class BridgeScenario:
     compression_material: Material | None = None
 
     def __post_init__(self) -> None:
-        _positive("bridge.span", self.span, "m")
-        _positive("bridge.rise", self.rise, "m", zero_ok=True)
-        _positive("bridge.depth", self.depth, "m", zero_ok=True)
-        _positive("bridge.deck_load", self.deck_load, "N/m")
+        span = checked_number("bridge.span", self.span, low=SPAN[0], high=SPAN[1], unit="m")
+        tall = HEIGHT_PER_SPAN * span
+        numbers = {
+            "span": span,
+            "rise": checked_number("bridge.rise", self.rise, low=0.0, high=tall,
+                                   unit=f"m ({HEIGHT_PER_SPAN:g} spans)"),
+            "depth": checked_number("bridge.depth", self.depth, low=0.0, high=tall,
+                                    unit=f"m ({HEIGHT_PER_SPAN:g} spans)"),
+            "deck_load": checked_number("bridge.deck_load", self.deck_load, low=DECK_LOAD[0],
+                                        high=DECK_LOAD[1], unit="N/m"),
+            "divisions": checked_whole("bridge.divisions", self.divisions, low=2, high=240,
+                                       even=True),
+        }
+        for name, value in numbers.items():  # plain floats and ints (numpy scalars accepted)
+            object.__setattr__(self, name, value)
         if self.arrangement not in ARRANGEMENTS:
             raise InputError("bridge.arrangement", self.arrangement,
                              "one of " + ", ".join(map(repr, ARRANGEMENTS)))
-        d = self.divisions
-        if isinstance(d, bool) or not isinstance(d, int) or d < 2 or d > 240 or d % 2:
-            raise InputError("bridge.divisions", d, "an even whole number from 2 to 240")
+        _bridge_material("material", self.material)
+        if self.compression_material is not None:
+            _bridge_material("compression_material", self.compression_material)
+        if not isinstance(self.name, str):
+            raise InputError("bridge.name", self.name, "a text string")
         if self.rise + self.depth <= 0:
             raise InputError("bridge.rise", self.rise, "> 0 m when depth is 0 (the domain needs height)")
         if self.rise < self.spacing * (1 - 1e-9) and self.depth < self.spacing * (1 - 1e-9):

@@ -28,8 +28,11 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.errors import InputError
+from bridgeopt.model.plane import points_in_polygon
 from bridgeopt.model.problem import Domain, LineLoad, Problem, Support
 
 __all__ = ["full_span_problem", "deck_extent"]
@@ -62,6 +65,32 @@ def _on_grid(field: str, value: float, step: float, lo: float, hi: float) -> flo
     return lo + j * step
 
 
+def _below_deck(i: int, outline, step: float):
+    """A channel must lie below the deck: the deck is carried across it, never cut by it."""
+    field = f"bridge.channel[{i}].outline"
+    try:
+        pts = [(float(x), float(z)) for x, z in outline]
+    except (TypeError, ValueError):
+        raise InputError(field, outline, "a list of points [x, z] in m") from None
+    high = max(z for _, z in pts)
+    if high > 1e-9 * step:
+        raise InputError(field, [list(p) for p in pts], "a polygon below the deck: every point at z <= 0 m "
+                         f"(the deck is at z = 0; this one reaches z = {high:g} m)")
+    return tuple(pts)
+
+
+def _clear_of_supports(channels, supports, step: float) -> None:
+    """No support may lie inside a channel (it would have no grid node to stand on)."""
+    for i, outline in enumerate(channels):
+        xz = np.array([sup.at for sup in supports], dtype=float)
+        inside = points_in_polygon(xz, outline, boundary=False, tol=1e-7 * step)
+        if inside.any():
+            x, z = xz[int(np.argmax(inside))]
+            raise InputError(f"bridge.channel[{i}].outline", [list(p) for p in outline],
+                             f"a channel clear of the supports (it covers the support at "
+                             f"[{x:g}, {z:g}] m)")
+
+
 def full_span_problem(bridge: BridgeScenario, *, piers=(), anchorages=(), channels=(),
                       deck_load: bool = True) -> Problem:
     """The whole span of ``bridge`` as a layout problem (no mirror line at mid-span).
@@ -87,6 +116,7 @@ def full_span_problem(bridge: BridgeScenario, *, piers=(), anchorages=(), channe
     s = bridge.spacing
     span = float(bridge.span)
     top, bottom = bridge.rise_cells * s, -bridge.depth_cells * s
+    channels = tuple(_below_deck(i, c, s) for i, c in enumerate(channels))
     domain = Domain(((0.0, bottom), (span, bottom), (span, top), (0.0, top)), tuple(channels))
     if bridge.arrangement == "repeating":
         supports = [Support((0.0, bottom), "z"), Support((span, bottom), "z")]
@@ -106,6 +136,7 @@ def full_span_problem(bridge: BridgeScenario, *, piers=(), anchorages=(), channe
         x = _on_grid(f"bridge.anchorages[{i}]", x, s, 0.0, span)
         z = _on_grid(f"bridge.anchorages[{i}]", z, s, bottom, top)
         supports.append(Support((x, z), "xz"))
+    _clear_of_supports(channels, supports, s)
     loads = (LineLoad((0.0, 0.0), (span, 0.0), bridge.deck_load),) if deck_load else ()
     return Problem(domain=domain, spacing=s, material=bridge.material, supports=tuple(supports),
                    line_loads=loads, mirror_lines=mirrors,

@@ -14,8 +14,14 @@ import math
 from dataclasses import dataclass
 
 from bridgeopt.errors import InputError
+from bridgeopt.model.limits import checked_number
 
 __all__ = ["GRAVITY", "Material", "PRESETS", "material_from_name"]
+
+#: Numeric bounds of any material's design stress [Pa] and non-zero density [kg/m3]: far
+#: outside practice, inside what the dimensionless LP resolves (k = rho g / sigma).
+STRENGTH_BOUNDS = (1.0e-3, 1.0e13)
+DENSITY_BOUNDS = (1.0e-6, 1.0e9)
 
 #: Standard acceleration of gravity [m/s2] (CGPM 1901, ISO 80000-3).
 GRAVITY = 9.80665
@@ -43,13 +49,16 @@ class Material:
     density: float
 
     def __post_init__(self) -> None:
+        # wide numeric bounds (the dimensionless LP's); bridge scenarios hold practical ones
         for field in ("tension_strength", "compression_strength"):
-            value = getattr(self, field)
-            if not (isinstance(value, (int, float)) and math.isfinite(value) and value > 0):
-                raise InputError(f"material.{field}", value, "a finite number > 0 Pa")
-        if not (isinstance(self.density, (int, float)) and math.isfinite(self.density)
-                and self.density >= 0):
-            raise InputError("material.density", self.density, "a finite number >= 0 kg/m3")
+            object.__setattr__(self, field, checked_number(
+                f"material.{field}", getattr(self, field), low=STRENGTH_BOUNDS[0],
+                high=STRENGTH_BOUNDS[1], unit="Pa"))
+        object.__setattr__(self, "density", checked_number(
+            "material.density", self.density, low=DENSITY_BOUNDS[0], high=DENSITY_BOUNDS[1],
+            unit="kg/m3", zero_ok=True))
+        if not isinstance(self.name, str):
+            raise InputError("material.name", self.name, "a text string")
 
     @property
     def weightless(self) -> bool:

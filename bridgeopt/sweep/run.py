@@ -12,7 +12,9 @@ from __future__ import annotations
 
 import logging
 import os
+import re
 import signal
+import threading
 import time
 from collections import deque
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
@@ -35,6 +37,12 @@ log = logging.getLogger(__name__)
 CONNECT_TIMEOUT = 30.0
 #: Least time between rewrites of the result tables while a sweep runs. [s]
 TABLE_INTERVAL = 2.0
+#: How often a worker checks that the sweep that started it is still running. [s]
+PARENT_CHECK = 0.5
+#: How long a stopped sweep waits for a worker to end before killing it. [s]
+WORKER_GRACE = 2.0
+#: Dask scheduler addresses: ``protocol://host[:port]`` or ``host:port``.
+SCHEDULER_ADDRESS = re.compile(r"^((tcp|tls|ucx|ws|wss|inproc)://[\w.\-\[\]:/]+|[\w.\-]+:\d{1,5})$")
 
 
 @dataclass
@@ -82,9 +90,27 @@ class SweepOutcome:
         return 60.0 * len(self.ran) / self.seconds if self.seconds > 0 else 0.0
 
 
-def _ignore_interrupt() -> None:
-    """Workers leave Ctrl-C to the parent, which stops the sweep and keeps what finished."""
+class _Stopped(KeyboardInterrupt):
+    """The sweep was asked to stop (SIGTERM): handled like Ctrl-C."""
+
+
+def _stop_on_term(signum, frame) -> None:
+    raise _Stopped()
+
+
+def _watch_parent(parent: int) -> None:
+    """End this worker when the sweep that started it is gone (killed with SIGKILL)."""
+    while True:
+        if os.getppid() != parent:
+            os._exit(1)
+        time.sleep(PARENT_CHECK)
+
+
+def _start_worker(parent: int) -> None:
+    """Set up a worker: Ctrl-C is the parent's to handle, and the worker never outlives it."""
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    threading.Thread(target=_watch_parent, args=(parent,), daemon=True).start()
 
 
 class _LocalPool:
@@ -95,28 +121,47 @@ class _LocalPool:
         self._pool = self._start()
 
     def _start(self) -> ProcessPoolExecutor:
-        return ProcessPoolExecutor(max_workers=self.slots, initializer=_ignore_interrupt)
+        return ProcessPoolExecutor(max_workers=self.slots, initializer=_start_worker,
+                                   initargs=(os.getpid(),))
 
     def submit(self, fn, *args):
         try:
             return self._pool.submit(fn, *args)
         except BrokenProcessPool:  # a worker died earlier: start afresh
-            self._pool.shutdown(wait=False, cancel_futures=True)
+            self._end_workers()
             self._pool = self._start()
             return self._pool.submit(fn, *args)
+
+    def _end_workers(self) -> None:
+        """Cancel what has not started, then end the workers (terminate, then kill)."""
+        # the executor keeps its processes in ``_processes``; it offers no public way to
+        # stop a running case, and a stopped sweep must not leave workers behind
+        procs = list((getattr(self._pool, "_processes", None) or {}).values())
+        self._pool.shutdown(wait=False, cancel_futures=True)
+        for proc in procs:
+            if proc.is_alive():
+                proc.terminate()
+        for proc in procs:
+            proc.join(WORKER_GRACE)
+            if proc.is_alive():
+                proc.kill()
+                proc.join(WORKER_GRACE)
 
     @staticmethod
     def wait(futures):
         return wait(futures, return_when=FIRST_COMPLETED)[0]
 
     def close(self, *, cancel: bool = False) -> None:
-        self._pool.shutdown(wait=not cancel, cancel_futures=cancel)
+        if cancel:
+            self._end_workers()
+        self._pool.shutdown(wait=True)
 
 
 class _DaskPool:
     """Worker threads of a Dask distributed cluster (imported only when asked for)."""
 
     def __init__(self, address: str) -> None:
+        check_scheduler(address)
         try:
             import distributed
         except ImportError:
@@ -140,6 +185,25 @@ class _DaskPool:
 
     def close(self, *, cancel: bool = False) -> None:
         self._client.close()
+
+
+def check_scheduler(address: str) -> str:
+    """Check the form of a Dask scheduler address before anything is connected or written.
+
+    Parameters
+    ----------
+    address : str
+        ``tcp://host:port`` (or another Dask protocol), or ``host:port``.
+
+    Raises
+    ------
+    InputError
+        Naming ``--scheduler`` when the address is not of that form.
+    """
+    if not isinstance(address, str) or not SCHEDULER_ADDRESS.match(address.strip()):
+        raise InputError("--scheduler", address, "the address of a running Dask scheduler, "
+                         "protocol://host:port or host:port, e.g. tcp://127.0.0.1:8786")
+    return address.strip()
 
 
 def _plan(cases: list[Case], journal: Journal, outcome: SweepOutcome, progress, total, done):
@@ -202,13 +266,22 @@ def run_sweep(sweep: Sweep, folder: str | os.PathLike, *, jobs: int | None = Non
     SweepOutcome
     """
     t0 = time.perf_counter()
+    if scheduler is not None:
+        scheduler = check_scheduler(scheduler)  # before the output folder is made
     journal = Journal(folder, lock=True)
     finished = journal.finished(failed_too=not retry_failed)
     todo = [c for c in sweep.cases if c.key not in finished]
     outcome = SweepOutcome(total=len(sweep), skipped=len(sweep) - len(todo),
                            folder=Path(folder))
+    if journal.rejected:
+        log.warning("%d line(s) of %s could not be trusted (not a finished case's row); "
+                    "their cases run again", journal.rejected, journal.path)
     done = [outcome.skipped]
     pool = None
+    main_thread = threading.current_thread() is threading.main_thread()
+    if main_thread:
+        old_int = signal.getsignal(signal.SIGINT)
+        old_term = signal.signal(signal.SIGTERM, _stop_on_term)
     try:
         groups, alone = _plan(todo, journal, outcome, progress, len(sweep), done)
         ready: deque = deque()
@@ -225,23 +298,32 @@ def run_sweep(sweep: Sweep, folder: str | os.PathLike, *, jobs: int | None = Non
                 pool = _LocalPool(max(1, jobs or os.cpu_count() or 1))
             outcome.workers = pool.slots
         pending: dict = {}
+        # cases in flight when a worker died: each runs again alone, so that only the case
+        # that really stops its worker is recorded as failed
+        suspects: deque = deque()
+        alone_run = False
         last_write = time.monotonic()
-        while ready or pending:
-            while ready and len(pending) < pool.slots:
+        while ready or pending or suspects:
+            if suspects and not pending:
+                task = suspects.popleft()
+                pending[_submit(pool, task)] = task
+                alone_run = True
+            while not suspects and ready and len(pending) < pool.slots:
                 task = ready.popleft()
-                kind, case, gkey, reference = task
-                if kind == "case":
-                    future = pool.submit(solve_case, case.data, reference)
-                else:
-                    future = pool.submit(solve_reference, case.data)
-                pending[future] = task
+                pending[_submit(pool, task)] = task
+                alone_run = False
             for future in pool.wait(pending):
-                kind, case, gkey, _ = pending.pop(future)
+                task = pending.pop(future)
+                kind, case, gkey, _ = task
                 try:
                     result = future.result()
+                except BrokenProcessPool as err:
+                    if not alone_run:
+                        suspects.append(task)
+                        continue
+                    result = _worker_stopped(kind, err)
                 except Exception as err:  # the worker itself failed (killed, out of memory)
-                    result = ((error_row("error", f"the worker stopped: {type(err).__name__}: "
-                                         f"{err}"), None) if kind == "case" else (None, str(err)))
+                    result = _worker_stopped(kind, err)
                 if kind == "case":
                     row, design = result
                     journal.append(case.key, row)
@@ -262,16 +344,25 @@ def run_sweep(sweep: Sweep, folder: str | os.PathLike, *, jobs: int | None = Non
                 if time.monotonic() - last_write > TABLE_INTERVAL:
                     write_tables(sweep, journal)
                     last_write = time.monotonic()
-    except KeyboardInterrupt:
+    except KeyboardInterrupt:  # Ctrl-C, or SIGTERM (_Stopped)
         outcome.interrupted = True
+        if main_thread:  # a second Ctrl-C must not cut the clean-up short
+            signal.signal(signal.SIGINT, signal.SIG_IGN)
+            signal.signal(signal.SIGTERM, signal.SIG_IGN)
         if pool is not None:
             pool.close(cancel=True)
             pool = None
     finally:
-        if pool is not None:
-            pool.close()
-        journal.close()
-        write_tables(sweep, journal)
+        try:
+            if pool is not None:
+                pool.close()
+            journal.close()
+            write_tables(sweep, journal)
+        finally:
+            if main_thread:
+                signal.signal(signal.SIGTERM, old_term if old_term is not None else signal.SIG_DFL)
+                signal.signal(signal.SIGINT, old_int if old_int is not None
+                              else signal.default_int_handler)
         outcome.seconds = time.perf_counter() - t0
         rows = [journal.rows[c.key] for c in sweep.cases if c.key in journal.rows]
         for row in rows:
@@ -281,3 +372,16 @@ def run_sweep(sweep: Sweep, folder: str | os.PathLike, *, jobs: int | None = Non
                 outcome.first_error = row.get("error", "")
         outcome.failed = sum(n for k, n in outcome.statuses.items() if k != "ok")
     return outcome
+
+
+def _submit(pool, task):
+    kind, case, _, reference = task
+    if kind == "case":
+        return pool.submit(solve_case, case.data, reference)
+    return pool.submit(solve_reference, case.data)
+
+
+def _worker_stopped(kind: str, err: BaseException):
+    """The result of a task whose worker stopped (killed, out of memory)."""
+    text = f"the worker stopped while solving this case: {type(err).__name__}: {err}"
+    return (error_row("error", text), None) if kind == "case" else (None, text)

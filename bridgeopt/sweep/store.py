@@ -20,7 +20,7 @@ from typing import Any
 from bridgeopt.cautions import CAUTION_LINES, CAUTIONS
 from bridgeopt.errors import InputError
 from bridgeopt.files.io import atomic_write
-from bridgeopt.sweep.cases import RESULT_COLUMNS
+from bridgeopt.sweep.cases import RESULT_COLUMNS, STATUSES
 from bridgeopt.sweep.expand import Sweep
 
 __all__ = ["Journal", "write_tables", "results_frame", "JOURNAL", "CSV", "PARQUET", "README"]
@@ -35,6 +35,37 @@ def _plain(value: Any) -> Any:
     if hasattr(value, "item"):  # numpy scalars
         return _plain(value.item())
     return value
+
+
+def _number_or_none(value: Any) -> bool:
+    return value is None or (isinstance(value, (int, float)) and not isinstance(value, bool))
+
+
+def _entry(line: bytes) -> tuple[str, dict] | None:
+    """``(key, row)`` of one journal line, or None when it is not a finished case's row.
+
+    A row is trusted only when it has every result column, a known status, numbers
+    (or none) where numbers belong and, for an ``ok`` row, a finite positive volume.
+    """
+    try:
+        entry = json.loads(line.decode("utf-8"))
+    except (UnicodeDecodeError, ValueError):
+        return None
+    if not isinstance(entry, dict) or not isinstance(entry.get("key"), str):
+        return None
+    row = entry.get("row")
+    if not isinstance(row, dict) or any(c not in row for c in RESULT_COLUMNS):
+        return None
+    if row["status"] not in STATUSES or not isinstance(row["error"], str):
+        return None
+    numbers = [c for c in RESULT_COLUMNS if c not in ("status", "error")]
+    if not all(_number_or_none(row[c]) for c in numbers):
+        return None
+    if row["status"] == "ok":
+        volume = row["volume_m3"]
+        if volume is None or not (math.isfinite(volume) and volume > 0):
+            return None
+    return entry["key"], row
 
 
 class Journal:
@@ -58,24 +89,41 @@ class Journal:
         except OSError as err:
             raise InputError("--output", str(folder), f"a folder that can be created "
                              f"({err.strerror})") from None
+        self.path = self.folder / JOURNAL
+        if self.path.exists() and not self.path.is_file():
+            raise InputError("--output", str(folder), f"a sweep folder whose {JOURNAL} is a "
+                             "file (found something else at that name)")
         if lock:
             self._take_lock()
-        self.path = self.folder / JOURNAL
         self.rows: dict[str, dict] = {}
+        #: Lines of the journal not trusted as a finished case (their cases run again).
+        self.rejected = 0
         if self.path.exists():
-            with open(self.path, encoding="utf-8") as fh:
-                for line in fh:
-                    try:
-                        entry = json.loads(line)
-                        self.rows[entry["key"]] = entry["row"]
-                    except (json.JSONDecodeError, KeyError, TypeError):
-                        continue  # a line cut short by a killed run
+            try:
+                data = self.path.read_bytes()
+            except OSError as err:
+                raise InputError("--output", str(folder), f"a folder whose {JOURNAL} can be "
+                                 f"read ({err.strerror})") from None
+            lines = data.split(b"\n")
+            for i, line in enumerate(lines):
+                if not line.strip():
+                    continue
+                entry = _entry(line)
+                if entry is None:
+                    if i < len(lines) - 1:  # the last line may be cut short by a killed run
+                        self.rejected += 1
+                    continue
+                self.rows[entry[0]] = entry[1]
 
     def _take_lock(self) -> None:
         """Refuse a second run writing to the same folder at the same time."""
         import fcntl
 
-        fh = open(self.folder / LOCK, "a")
+        try:
+            fh = open(self.folder / LOCK, "a")
+        except OSError as err:
+            raise InputError("--output", str(self.folder), f"a folder this sweep can write to "
+                             f"({err.strerror})") from None
         try:
             # a POSIX record lock: held by this process only, not by the worker processes
             # it forks, so it ends with the process however it ends
@@ -107,13 +155,17 @@ class Journal:
             Its result columns (non-finite numbers are stored as null).
         """
         row = {k: _plain(v) for k, v in row.items()}
-        if self._fh is None:
-            self._fh = open(self.path, "a", encoding="utf-8")
-            if self._fh.tell() > 0:  # a previous run may have been cut mid-line
-                self._fh.write("\n")
-        self._fh.write(json.dumps({"key": key, "row": row}, allow_nan=False) + "\n")
-        self._fh.flush()
-        os.fsync(self._fh.fileno())
+        try:
+            if self._fh is None:
+                self._fh = open(self.path, "a", encoding="utf-8")
+                if self._fh.tell() > 0:  # a previous run may have been cut mid-line
+                    self._fh.write("\n")
+            self._fh.write(json.dumps({"key": key, "row": row}, allow_nan=False) + "\n")
+            self._fh.flush()
+            os.fsync(self._fh.fileno())
+        except OSError as err:
+            raise InputError("--output", str(self.folder), f"a folder this sweep can write to "
+                             f"({err.strerror})") from None
         self.rows[key] = row
 
     def close(self) -> None:

@@ -27,6 +27,7 @@ from pathlib import Path
 from typing import Any, Callable
 
 from bridgeopt.cautions import CAUTION_LINES
+from bridgeopt.workbook.params import convert_text
 from bridgeopt.errors import BridgeoptError, InputError, SolveError
 
 __all__ = ["setup", "param", "fast_mode", "report_mode", "error_text", "message_html",
@@ -130,18 +131,9 @@ def param(name: str, default: Any, fast: Any = None) -> Any:
     if text is None:
         return fast if (fast is not None and fast_mode()) else default
     try:
-        if isinstance(default, bool):
-            return text.strip().lower() in ("1", "true", "yes", "on")
-        if isinstance(default, int):
-            return int(text)
-        if isinstance(default, float):
-            return float(text)
-        if isinstance(default, (list, tuple)):
-            kind = type(default[0]) if default else float
-            return [kind(v) for v in text.split(",") if v.strip()]
+        return convert_text(text, default)
     except ValueError:
         raise InputError(key, text, f"a value like {default!r}") from None
-    return text
 
 
 def error_text(err: BaseException) -> str:

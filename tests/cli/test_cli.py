@@ -150,9 +150,21 @@ def test_hanging_bar_through_the_cli(tmp_path):
 def test_json_replaces_an_existing_file_atomically(small, tmp_path):
     out = tmp_path / "out.json"
     out.write_text("old contents")
-    assert run("solve", str(small), "--json", str(out)).returncode == 0
+    assert run("solve", str(small), "--json", str(out), "--force").returncode == 0
     assert json.loads(out.read_text())["status"] == "optimal"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out.json", "small.toml"]
+
+
+def test_json_never_replaces_a_file_bridgeopt_did_not_write(small, tmp_path):
+    notes = tmp_path / "notes.json"
+    notes.write_text('{"meeting": "keep me"}')
+    proc = run("solve", str(small), "--json", str(notes))
+    assert proc.returncode == 2 and proc.stderr.count("\n") == 1
+    assert "--json" in proc.stderr and "--force" in proc.stderr
+    assert notes.read_text() == '{"meeting": "keep me"}'
+    ours = tmp_path / "ours.json"
+    assert run("solve", str(small), "--json", str(ours)).returncode == 0
+    assert run("solve", str(small), "--json", str(ours)).returncode == 0   # its own output
 
 
 def test_bridge_json_and_normalised_volume(tmp_path):
