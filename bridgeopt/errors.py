@@ -13,6 +13,14 @@ from __future__ import annotations
 __all__ = ["BridgeoptError", "InputError", "SolveError"]
 
 
+#: Longest name or value shown whole in a message; longer ones are cut (the rest is elided).
+SHOWN = 80
+
+
+def _shorter(text: str) -> str:
+    return text if len(text) <= SHOWN else text[:SHOWN - 8] + " ...(" + str(len(text)) + " chars)"
+
+
 class BridgeoptError(Exception):
     """Base class of every error bridgeopt raises on purpose."""
 
@@ -39,7 +47,8 @@ class InputError(BridgeoptError, ValueError):
         self.field = field
         self.value = value
         self.valid = valid
-        super().__init__(f"{field} = {value!r} is invalid: valid is {valid}")
+        super().__init__(f"{_shorter(str(field))} = {_shorter(repr(value))} is invalid: "
+                         f"valid is {valid}")
 
 
 class SolveError(BridgeoptError, RuntimeError):

@@ -179,3 +179,15 @@ def test_judge_names_the_layout_file_for_a_layout_error(tmp_path):
                            str(layout)], capture_output=True, text=True, timeout=120)
     assert proc.returncode == 2
     assert f"(in {layout})" in proc.stderr and "bracket.toml" not in proc.stderr
+
+
+def test_a_huge_key_or_value_is_not_echoed_whole():
+    with pytest.raises(InputError) as err:
+        parse_scenario({"name": "t", "material": {"preset": "steel"}, "k" * 100_000: 1,
+                        "bridge": {"span": 600.0, "rise": 150.0, "depth": 60.0,
+                                   "deck_load": 1.8e5, "divisions": 20}})
+    assert len(str(err.value)) < 1000 and "100000 chars" in str(err.value)
+    assert err.value.field == "k" * 100_000       # the full name stays on the error
+    with pytest.raises(InputError) as err:
+        _bridge(name="x" * 100_000, span="y" * 100_000)
+    assert len(str(err.value)) < 1000

@@ -65,7 +65,11 @@ ARRAY_TABLES = {("support",): "support", ("load",): "load", ("line_load",): "lin
 #: How deeply a value is nested in lists in a scenario file (0 for a number or a string).
 LIST_DEPTH = {("domain", "x"): 1, ("domain", "z"): 1, ("domain", "outline"): 2,
               ("domain", "excluded", "outline"): 2, ("support", "at"): 1, ("load", "at"): 1,
-              ("load", "force"): 1, ("line_load", "from"): 1, ("line_load", "to"): 1}
+              ("load", "force"): 1, ("line_load", "from"): 1, ("line_load", "to"): 1,
+              ("bridge", "piers"): 1, ("bridge", "anchorages"): 2,
+              ("bridge", "channel", "outline"): 2, ("load_case", "load", "at"): 1,
+              ("load_case", "load", "force"): 1, ("load_case", "line_load", "from"): 1,
+              ("load_case", "line_load", "to"): 1}
 #: Most cases in one sweep.
 MAX_CASES = 100_000
 
@@ -153,9 +157,26 @@ def _expand(value: Any, path: tuple[str, ...]) -> list[Any]:
             return [list(combo) for combo in itertools.product(
                 *(_expand(v, path) for v in value))]
         return [case for v in value for case in _expand(v, path)]  # alternatives
-    if _depth(value) > LIST_DEPTH.get(path, 0):
+    depth = _depth(value)
+    if depth > LIST_DEPTH.get(path, 0) + 1:
+        raise InputError(_name(path), _short_list(value), _list_valid(path))
+    if depth > LIST_DEPTH.get(path, 0):
         return [case for v in value for case in _expand(v, path)]
     return [value]
+
+
+def _short_list(value: list) -> object:
+    text = repr(value)
+    return value if len(text) <= 80 else text[:72] + " ..."
+
+
+def _list_valid(path: tuple[str, ...]) -> str:
+    """What a swept value at ``path`` may be (for the message on a list nested too deeply)."""
+    own = LIST_DEPTH.get(path, 0)
+    if own == 0:
+        return "a value, or a list of values to sweep (not a list of lists)"
+    return (f"a value nested {own} list(s) deep, or a list of such values to sweep "
+            "(one level more at the most)")
 
 
 def _count(value: Any, path: tuple[str, ...]) -> int:
@@ -175,7 +196,10 @@ def _count(value: Any, path: tuple[str, ...]) -> int:
                 n *= c
             return n
         return sum(counts)
-    if _depth(value) > LIST_DEPTH.get(path, 0):
+    depth = _depth(value)
+    if depth > LIST_DEPTH.get(path, 0) + 1:
+        raise InputError(_name(path), _short_list(value), _list_valid(path))
+    if depth > LIST_DEPTH.get(path, 0):
         return sum(_count(v, path) for v in value)
     return 1
 

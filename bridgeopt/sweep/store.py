@@ -14,6 +14,8 @@ from __future__ import annotations
 import json
 import math
 import os
+import signal
+import threading
 from pathlib import Path
 from typing import Any
 
@@ -66,6 +68,10 @@ def _entry(line: bytes) -> tuple[str, dict] | None:
         if volume is None or not (math.isfinite(volume) and volume > 0):
             return None
     return entry["key"], row
+
+
+#: Signals held while a journal line and its in-memory row are written together.
+_STOP_SIGNALS = {signal.SIGINT, signal.SIGTERM}
 
 
 class Journal:
@@ -155,6 +161,18 @@ class Journal:
             Its result columns (non-finite numbers are stored as null).
         """
         row = {k: _plain(v) for k, v in row.items()}
+        # Ctrl-C between the write and the update of ``rows`` would leave a journal line the
+        # result tables miss: hold the stop signals for these few lines (main thread only)
+        main = threading.current_thread() is threading.main_thread()
+        try:
+            if main:  # blocked signals are delivered when unblocked, just below
+                signal.pthread_sigmask(signal.SIG_BLOCK, _STOP_SIGNALS)
+            self._append(key, row)
+        finally:
+            if main:
+                signal.pthread_sigmask(signal.SIG_UNBLOCK, _STOP_SIGNALS)
+
+    def _append(self, key: str, row: dict) -> None:
         try:
             if self._fh is None:
                 self._fh = open(self.path, "a", encoding="utf-8")

@@ -1,0 +1,33 @@
+"""Lists in sweep files: one level of list sweeps a key; a list nested deeper than a key can
+hold is refused with one line (it was flattened into cases silently before)."""
+
+from __future__ import annotations
+
+import pytest
+
+from bridgeopt import InputError
+from bridgeopt.sweep import expand_sweep
+
+
+def _sweep(**bridge):
+    base = {"span": 600.0, "rise": 150.0, "depth": 0.0, "deck_load": 1.8e5, "divisions": 12}
+    return {"name": "Wendle Flats (fictional)", "bridge": {**base, **bridge},
+            "material": {"preset": "steel"}}
+
+
+def test_a_list_of_lists_for_a_number_is_refused():
+    with pytest.raises(InputError) as err:
+        expand_sweep(_sweep(span=[[600.0, 700.0]]))
+    assert err.value.field == "bridge.span"
+    assert "not a list of lists" in str(err.value)
+
+
+def test_a_list_of_numbers_sweeps_and_a_list_of_pier_lists_sweeps_pier_sets():
+    assert len(expand_sweep(_sweep(span=[600.0, 700.0]))) == 2
+    piers = expand_sweep(_sweep(piers=[[300.0], [150.0, 450.0]]))
+    assert [c.data["bridge"]["piers"] for c in piers.cases] == [[300.0], [150.0, 450.0]]
+    one = expand_sweep(_sweep(piers=[300.0]))
+    assert len(one) == 1 and one.cases[0].data["bridge"]["piers"] == [300.0]
+    with pytest.raises(InputError) as err:
+        expand_sweep(_sweep(piers=[[[300.0]]]))
+    assert err.value.field == "bridge.piers"
