@@ -13,7 +13,8 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from bridgeopt import BridgeScenario, Design, InputError, Material, PRESETS, SolveError
+from bridgeopt import (BridgeScenario, Design, InputError, Material, PRESETS, SolveError,
+                       optimize_layout)
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.cli import main
 from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, ArchForm, CableStayedForm,
@@ -262,8 +263,16 @@ def test_quantities_add_up_to_the_form():
 
 
 def test_reference_form_is_the_reference():
+    """The reference form's volume and ratio against a layout optimization solved here,
+    on the same problem, apart from solve_form (the ratio is the form's volume over it)."""
     result = solve_form(bridge(), ReferenceForm())
-    assert result.ratio == 1.0 and result.volume == result.reference_volume
+    alone = optimize_layout(form_problem(bridge(), ReferenceForm()))
+    assert result.volume == pytest.approx(alone.volume, rel=1e-9)
+    assert result.reference_volume == pytest.approx(alone.volume, rel=1e-9)
+    assert result.ratio == pytest.approx(result.volume / alone.volume, rel=1e-9)
+    assert result.weight == pytest.approx(alone.weight, rel=1e-9)
+    assert sum(q["volume_m3"] for q in result.quantities.values()) == pytest.approx(
+        alone.volume, rel=1e-9)
 
 
 def test_form_solvers_for_a_study_return_designs():

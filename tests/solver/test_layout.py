@@ -1,6 +1,7 @@
 """Core behaviour: immutability, input errors, member adding = full ground structure,
 excluded zones, the equal-strength span limit."""
 
+import dataclasses
 import math
 
 import numpy as np
@@ -43,7 +44,7 @@ def test_inputs_are_not_mutated_and_results_are_read_only():
     before = repr(problem)
     design = optimize_layout(problem)
     assert repr(problem) == before
-    with pytest.raises(Exception):
+    with pytest.raises(dataclasses.FrozenInstanceError, match="cannot assign to field 'spacing'"):
         problem.spacing = 1.0  # frozen dataclass
     with pytest.raises(ValueError):
         design.nodes[0, 0] = 1.0
