@@ -334,6 +334,7 @@ def test_reference_is_a_lower_bound_and_optimization_never_adds_volume(spec, mat
     assert result.ratio >= 1.0
 
 
+@pytest.mark.slow
 def test_a_form_lighter_than_a_coarse_reference_is_flagged(caplog):
     """The grid reference converges to the optimum from above, so on a very coarse grid a
     near-optimal form can come out lighter (a weightless single-span through arch is only

@@ -32,6 +32,7 @@ def test_member_adding_equals_full_ground_structure(arrangement):
     assert fast.stats["columns"] < full.stats["columns"]
 
 
+@pytest.mark.slow
 def test_coarse_start_does_not_change_the_optimum():
     problem = _bridge(divisions=48, rise=250.0, depth=0.0).to_problem()
     seeded = optimize_layout(problem)
