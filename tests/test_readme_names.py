@@ -18,6 +18,8 @@ import re
 import typing
 from pathlib import Path
 
+import pytest
+
 ROOT = Path(__file__).resolve().parents[1]
 
 
@@ -68,21 +70,20 @@ def test_readme_imports_exist():
     assert all(v is not None for v in names.values())
 
 
-def test_readme_keywords_are_accepted():
-    tree = readme_tree()
+def bad_keywords(tree: ast.Module) -> list[str]:
+    """``name(keyword=)`` for every keyword a called bridgeopt name does not take."""
     names = imported_names(tree)
-    calls = [n for n in ast.walk(tree) if isinstance(n, ast.Call)
-             and isinstance(n.func, ast.Name) and n.func.id in names]
-    assert calls
-    for call in calls:
+    out = []
+    for call in (n for n in ast.walk(tree) if isinstance(n, ast.Call)
+                 and isinstance(n.func, ast.Name) and n.func.id in names):
         params = inspect.signature(names[call.func.id]).parameters
-        takes_any = any(p.kind is p.VAR_KEYWORD for p in params.values())
-        for kw in call.keywords:
-            assert takes_any or kw.arg in params, f"README: {call.func.id}() has no {kw.arg}="
+        if not any(p.kind is p.VAR_KEYWORD for p in params.values()):
+            out += [f"{call.func.id}({kw.arg}=)" for kw in call.keywords if kw.arg not in params]
+    return out
 
 
-def test_readme_attributes_exist():
-    tree = readme_tree()
+def attribute_uses(tree: ast.Module) -> dict[tuple[str, str], type]:
+    """``{(variable, attribute): type of the variable}`` for the blocks' result variables."""
     names = imported_names(tree)
     kinds = {}
     for node in tree.body:  # in order: a variable's type is the one it was last given
@@ -92,13 +93,39 @@ def test_readme_attributes_exist():
             for target in node.targets:
                 if isinstance(target, ast.Name) and cls is not None:
                     kinds[target.id] = cls
-    used = {(n.value.id, n.attr) for n in ast.walk(tree)
+    return {(n.value.id, n.attr): kinds[n.value.id] for n in ast.walk(tree)
             if isinstance(n, ast.Attribute) and isinstance(n.value, ast.Name)
             and n.value.id in kinds}
-    assert len(used) >= 8  # design.summary, clean.stats, form.ratio, both.summary, ...
-    missing = [f"{var}.{attr} ({kinds[var].__name__})" for var, attr in sorted(used)
-               if not has_attribute(kinds[var], attr)]
+
+
+def missing_attributes(tree: ast.Module) -> list[str]:
+    return [f"{var}.{attr} ({cls.__name__})" for (var, attr), cls in
+            sorted(attribute_uses(tree).items()) if not has_attribute(cls, attr)]
+
+
+def test_readme_keywords_are_accepted():
+    tree = readme_tree()
+    assert any(isinstance(n, ast.keyword) for n in ast.walk(tree))
+    assert not bad_keywords(tree), f"README passes keywords that do not exist: {bad_keywords(tree)}"
+
+
+def test_readme_attributes_exist():
+    tree = readme_tree()
+    assert len(attribute_uses(tree)) >= 8  # design.summary, clean.stats, form.ratio, ...
+    missing = missing_attributes(tree)
     assert not missing, f"README uses attributes that do not exist: {missing}"
+
+
+def test_the_checks_catch_a_wrong_name():
+    """The checker itself, on a made-up block: a missing keyword, attribute and name."""
+    tree = ast.parse("from bridgeopt import BridgeScenario, optimize_layout\n"
+                     "b = BridgeScenario(span=1.0, height=2.0)\n"
+                     "d = optimize_layout(b.to_problem())\n"
+                     "d.volume, d.no_such_thing\n")
+    assert bad_keywords(tree) == ["BridgeScenario(height=)"]
+    assert missing_attributes(tree) == ["d.no_such_thing (Design)"]
+    with pytest.raises(AssertionError, match="no_such_name"):
+        imported_names(ast.parse("from bridgeopt import no_such_name\n"))
 
 
 def test_readme_results_have_a_known_type():
