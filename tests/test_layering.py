@@ -19,7 +19,6 @@ import ast
 import functools
 from pathlib import Path
 
-import pytest
 
 PACKAGE = Path(__file__).resolve().parents[1] / "bridgeopt"
 
@@ -150,10 +149,6 @@ def test_the_walk_sees_function_level_and_relative_imports(tmp_path):
     assert upward_imports(graph) == ["bridgeopt.model.b:2 -> bridgeopt.cli.app"]
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "layering fault being mended (issue 13): bridgeopt.files.casefile <-> bridgeopt.files.scenario "
-    "(casefile.py:28 imports scenario in _s(); scenario.py:435, 635, 728 import casefile "
-    "inside functions); remove this mark when the circle is gone"))
 def test_no_import_circle():
     found = circles(import_graph())
     assert not found, "import circles: " + "; ".join(" <-> ".join(c) for c in found)

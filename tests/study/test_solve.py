@@ -154,6 +154,7 @@ def test_reading_a_file_imports_no_solver(name):
     assert "bridgeopt.files.scenario" not in used or name == "scenario"
 
 
+@pytest.mark.slow
 def test_the_command_line_and_package_import_no_tables_or_widgets():
     code = ("import sys, bridgeopt, bridgeopt.cli, bridgeopt.study, bridgeopt.sweep.cases; "
             "print([m for m in ('pandas', 'plotly', 'ipywidgets') if m in sys.modules])")
