@@ -19,7 +19,6 @@ import ast
 import functools
 from pathlib import Path
 
-
 PACKAGE = Path(__file__).resolve().parents[1] / "bridgeopt"
 
 #: Lowest first; names on one line share a level.

@@ -18,7 +18,7 @@ from bridgeopt.study.solve import (CASE_STATUSES, OPTION_STATUS, STATUSES, Solve
                                    form_reference, solve_scenario)
 from bridgeopt.sweep import cases
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def two_bar() -> dict:
