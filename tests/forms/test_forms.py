@@ -308,6 +308,7 @@ MATERIALS = st.sampled_from([PRESETS["steel"], PRESETS["weightless-steel"], PRES
                              PRESETS["cable-wire"]])
 
 
+@pytest.mark.slow
 @settings(max_examples=int(os.environ.get("BRIDGEOPT_FORM_EXAMPLES", "12")), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(spec=SPECS, material=MATERIALS, span=st.sampled_from([300.0, 900.0, 2500.0]),
        rise_ratio=st.sampled_from([0.2, 0.35]), arrangement=st.sampled_from(["repeating",

@@ -76,6 +76,7 @@ def test_a_bridge_without_a_form_is_the_reference_optimum():
                                                                            rel=1e-12)
 
 
+@pytest.mark.slow
 def test_a_form_is_solved_against_its_reference_and_geometry_option_reaches_it():
     scenario = parse_scenario(bridge_file(type="cable-stayed", stays=5))
     solved = solve_scenario(scenario)
