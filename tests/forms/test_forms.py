@@ -191,6 +191,7 @@ def test_funicular_profile_needs_no_ballast_under_self_weight(spec):
     assert_equilibrium(funicular.design)
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("spec", [SuspensionForm(), ArchForm()], ids=lambda s: s.type)
 def test_funicular_search_and_free_nodes_agree(spec):
     """Two routes to the best cable or rib: a scalar search over exact funicular forms, and

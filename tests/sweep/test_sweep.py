@@ -193,6 +193,7 @@ def test_parquet_matches_csv_and_tables_carry_the_cautions(finished):
     assert all(line in readme for line in CAUTION_LINES)
 
 
+@pytest.mark.slow
 def test_rerun_runs_only_the_missing_cases(finished, tmp_path):
     sweep, _, out, _ = finished
     folder = tmp_path / "resume"
