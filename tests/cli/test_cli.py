@@ -78,6 +78,7 @@ def assert_one_error_line(proc, *parts: str) -> str:
 
 # ---------------------------------------------------------------- solve
 
+@pytest.mark.slow
 def test_solve_writes_json_equal_to_optimize_layout(small, tmp_path):
     out = tmp_path / "out.json"
     proc = run("solve", str(small), "--json", str(out))
@@ -109,6 +110,7 @@ def test_solve_writes_json_equal_to_optimize_layout(small, tmp_path):
     assert not list(tmp_path.glob("*.tmp"))
 
 
+@pytest.mark.slow
 def test_solve_summary_has_inputs_results_and_cautions(small):
     proc = run("solve", str(small))
     assert proc.returncode == 0, proc.stderr
@@ -123,6 +125,7 @@ def test_solve_summary_has_inputs_results_and_cautions(small):
     assert f"{direct.volume:,.5g} m3" in text
 
 
+@pytest.mark.slow
 def test_full_ground_structure_gives_the_same_volume(small, tmp_path):
     a, b = tmp_path / "a.json", tmp_path / "b.json"
     assert run("solve", str(small), "--json", str(a)).returncode == 0
@@ -135,6 +138,7 @@ def test_full_ground_structure_gives_the_same_volume(small, tmp_path):
     assert va["stats"]["columns"] < va["stats"]["candidates"]
 
 
+@pytest.mark.slow
 def test_hanging_bar_through_the_cli(tmp_path):
     """V = P (exp(k h) - 1) / (rho g), k = rho g / sigma (S.P. Timoshenko, Strength of
     Materials, Part I, bar of uniform strength); P = 1 MN, h = 1000 m, S355 steel."""
@@ -147,6 +151,7 @@ def test_hanging_bar_through_the_cli(tmp_path):
     assert json.loads(out.read_text())["volume"] == pytest.approx(expected, rel=1e-9)
 
 
+@pytest.mark.slow
 def test_json_replaces_an_existing_file_atomically(small, tmp_path):
     out = tmp_path / "out.json"
     out.write_text("old contents")
@@ -155,6 +160,7 @@ def test_json_replaces_an_existing_file_atomically(small, tmp_path):
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out.json", "small.toml"]
 
 
+@pytest.mark.slow
 def test_json_never_replaces_a_file_bridgeopt_did_not_write(small, tmp_path):
     notes = tmp_path / "notes.json"
     notes.write_text('{"meeting": "keep me"}')
@@ -167,6 +173,7 @@ def test_json_never_replaces_a_file_bridgeopt_did_not_write(small, tmp_path):
     assert run("solve", str(small), "--json", str(ours)).returncode == 0   # its own output
 
 
+@pytest.mark.slow
 def test_bridge_json_and_normalised_volume(tmp_path):
     out = tmp_path / "demo.json"
     proc = run("solve", str(DEMO), "--json", str(out))
@@ -184,6 +191,7 @@ def test_bridge_json_and_normalised_volume(tmp_path):
 
 # ---------------------------------------------------------------- demo and check
 
+@pytest.mark.slow
 def test_demo_subcommand(tmp_path):
     out = tmp_path / "demo.json"
     proc = run("demo", "--json", str(out), cwd=tmp_path)
@@ -199,6 +207,7 @@ def test_demo_subcommand(tmp_path):
                                            rel=1e-9)
 
 
+@pytest.mark.slow
 def test_check_subcommand(small):
     proc = run("check", str(small))
     assert proc.returncode == 0, proc.stderr
@@ -207,6 +216,7 @@ def test_check_subcommand(small):
 
 # ---------------------------------------------------------------- failures
 
+@pytest.mark.slow
 def test_bad_value_exits_2_with_one_line_naming_the_key(tmp_path):
     path = write(tmp_path, SMALL.replace("spacing = 0.5", "spacing = 'half'"))
     proc = run("solve", str(path))
@@ -214,6 +224,7 @@ def test_bad_value_exits_2_with_one_line_naming_the_key(tmp_path):
     assert_one_error_line(proc, "domain.spacing", "'half'", "> 0 m")
 
 
+@pytest.mark.slow
 def test_unknown_key_exits_2_and_lists_valid_keys(tmp_path):
     path = write(tmp_path, SMALL + "\n[solve]\nmember_adding = true\nmember_addng = false\n")
     proc = run("solve", str(path))
@@ -221,6 +232,7 @@ def test_unknown_key_exits_2_and_lists_valid_keys(tmp_path):
     assert_one_error_line(proc, "solve.member_addng", "member_adding")
 
 
+@pytest.mark.slow
 def test_bridge_wrong_type_exits_2(tmp_path):
     text = DEMO.read_text().replace("span = 1800.0", "span = 'abc'")
     proc = run("solve", str(write(tmp_path, text)))
@@ -228,6 +240,7 @@ def test_bridge_wrong_type_exits_2(tmp_path):
     assert_one_error_line(proc, "bridge.span = 'abc' is invalid: valid is a number > 0 m")
 
 
+@pytest.mark.slow
 def test_load_off_the_grid_exits_2(tmp_path):
     path = write(tmp_path, SMALL.replace("at = [4.0, 1.0]", "at = [4.0, 1.25]"))
     proc = run("solve", str(path))
@@ -235,6 +248,7 @@ def test_load_off_the_grid_exits_2(tmp_path):
     assert_one_error_line(proc, "load[0].at", "grid node")
 
 
+@pytest.mark.slow
 def test_missing_file_and_bad_toml_exit_2(tmp_path):
     proc = run("solve", str(tmp_path / "nothere.toml"))
     assert proc.returncode == 2
@@ -244,12 +258,14 @@ def test_missing_file_and_bad_toml_exit_2(tmp_path):
     assert_one_error_line(proc, "TOML")
 
 
+@pytest.mark.slow
 def test_unwritable_json_target_exits_2_before_solving(small, tmp_path):
     proc = run("solve", str(small), "--json", str(tmp_path / "no" / "such" / "dir.json"))
     assert proc.returncode == 2
     assert_one_error_line(proc, "--json")
 
 
+@pytest.mark.slow
 def test_solve_error_exits_3(tmp_path):
     # only horizontal restraint: nothing can carry the vertical load to the supports
     text = SMALL.replace("at = [0.0, 0.0]", "at = [0.0, 0.0]\nfix = \"x\"").replace(
@@ -261,6 +277,7 @@ def test_solve_error_exits_3(tmp_path):
     assert not out.exists()
 
 
+@pytest.mark.slow
 def test_span_limit_solve_error_exits_3_with_one_line(tmp_path):
     """Equal-strength elements reach at most pi sigma / (rho g) horizontally (catenary of
     equal strength, D. Gilbert 1826, Phil. Trans. R. Soc. 116:202-218): 40.8 m here."""
@@ -284,6 +301,7 @@ force = [0.0, -1.0]
     assert f"{math.pi * 1.0e6 / (7850.0 * GRAVITY):.6g} m" in line
 
 
+@pytest.mark.slow
 def test_usage_errors_exit_2_with_one_line():
     proc = run()
     assert proc.returncode == 2
@@ -296,6 +314,7 @@ def test_usage_errors_exit_2_with_one_line():
     assert_one_error_line(proc, "frobnicate")
 
 
+@pytest.mark.slow
 def test_version_and_help():
     proc = run("--version")
     assert proc.returncode == 0 and "bridgeopt" in proc.stdout
@@ -314,6 +333,7 @@ def test_main_returns_exit_codes(small, tmp_path, capsys):
     assert err.count("\n") == 1 and "material.preset" in err and "'steel'" in err
 
 
+@pytest.mark.slow
 def test_solve_with_geometry_optimization(small, tmp_path):
     out = tmp_path / "go.json"
     plain = run("solve", str(small), "--json", str(tmp_path / "plain.json"))

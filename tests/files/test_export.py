@@ -140,6 +140,7 @@ def test_dxf_round_trip_same_geometry_per_layer(exported):
     assert doc.header["$INSUNITS"] == 6   # metres
 
 
+@pytest.mark.slow
 def test_cli_export_from_a_scenario_and_from_json(tmp_path):
     scenario = tmp_path / "s.toml"
     scenario.write_text('name = "Orrin Gap"\n[bridge]\nspan = 400.0\nrise = 100.0\n'

@@ -413,7 +413,7 @@ def test_unknown_keys_are_caught_and_valid_keys_listed(kind, table, key, listed)
 def test_every_listed_key_is_accepted_somewhere():
     """KEYS is what the parser checks against: the big examples use every key of each table."""
     d = layout_dict()
-    assert set(d) | {"load_case", "cost"} == set(KEYS["layout"])  # tested in tests/solver/test_multicase.py
+    assert set(d) | {"load_case", "cost"} == set(KEYS["layout"])  # in solver/test_multicase.py
     assert set(d["domain"]) | {"outline"} == set(KEYS["domain"])
     assert set(d["material"]) | {"preset", "strength"} == set(KEYS["material"])
 

@@ -13,7 +13,8 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from bridgeopt import BridgeScenario, Design, InputError, Material, PRESETS, SolveError
+from bridgeopt import (BridgeScenario, Design, InputError, Material, PRESETS, SolveError,
+                       optimize_layout)
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.cli import main
 from bridgeopt.forms import (FORM_SOLVERS, FORM_TYPES, ArchForm, CableStayedForm,
@@ -190,6 +191,7 @@ def test_funicular_profile_needs_no_ballast_under_self_weight(spec):
     assert_equilibrium(funicular.design)
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("spec", [SuspensionForm(), ArchForm()], ids=lambda s: s.type)
 def test_funicular_search_and_free_nodes_agree(spec):
     """Two routes to the best cable or rib: a scalar search over exact funicular forms, and
@@ -262,8 +264,16 @@ def test_quantities_add_up_to_the_form():
 
 
 def test_reference_form_is_the_reference():
+    """The reference form's volume and ratio against a layout optimization solved here,
+    on the same problem, apart from solve_form (the ratio is the form's volume over it)."""
     result = solve_form(bridge(), ReferenceForm())
-    assert result.ratio == 1.0 and result.volume == result.reference_volume
+    alone = optimize_layout(form_problem(bridge(), ReferenceForm()))
+    assert result.volume == pytest.approx(alone.volume, rel=1e-9)
+    assert result.reference_volume == pytest.approx(alone.volume, rel=1e-9)
+    assert result.ratio == pytest.approx(result.volume / alone.volume, rel=1e-9)
+    assert result.weight == pytest.approx(alone.weight, rel=1e-9)
+    assert sum(q["volume_m3"] for q in result.quantities.values()) == pytest.approx(
+        alone.volume, rel=1e-9)
 
 
 def test_form_solvers_for_a_study_return_designs():
@@ -299,6 +309,7 @@ MATERIALS = st.sampled_from([PRESETS["steel"], PRESETS["weightless-steel"], PRES
                              PRESETS["cable-wire"]])
 
 
+@pytest.mark.slow
 @settings(max_examples=int(os.environ.get("BRIDGEOPT_FORM_EXAMPLES", "12")), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(spec=SPECS, material=MATERIALS, span=st.sampled_from([300.0, 900.0, 2500.0]),
        rise_ratio=st.sampled_from([0.2, 0.35]), arrangement=st.sampled_from(["repeating",
@@ -325,6 +336,7 @@ def test_reference_is_a_lower_bound_and_optimization_never_adds_volume(spec, mat
     assert result.ratio >= 1.0
 
 
+@pytest.mark.slow
 def test_a_form_lighter_than_a_coarse_reference_is_flagged(caplog):
     """The grid reference converges to the optimum from above, so on a very coarse grid a
     near-optimal form can come out lighter (a weightless single-span through arch is only

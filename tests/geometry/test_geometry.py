@@ -7,6 +7,8 @@ from statics derived in each docstring.
 
 from __future__ import annotations
 
+import copy
+
 import numpy as np
 import pytest
 
@@ -168,10 +170,27 @@ def test_bad_options_are_named():
 
 
 def test_input_is_not_mutated():
-    frame = _arch_frame(STEEL)
+    """The caller's own (writeable) arrays come back unchanged: a write into any of them
+    would show here, not be stopped by a read-only flag."""
+    template = _arch_frame(STEEL)
+    nodes, start, end = (np.array(a) for a in (template.nodes, template.start, template.end))
+    assert nodes.flags.writeable and start.flags.writeable and end.flags.writeable
+    frame = Frame(problem=template.problem, nodes=nodes, start=start, end=end)
+    moves = default_moves(frame)
+    assert moves.T.flags.writeable and moves.lower.flags.writeable
+    kept = copy.deepcopy((nodes, start, end, moves.T, moves.lower, moves.upper))
     before = frame.nodes.copy()
     design = size_frame(frame)
+    design_before = copy.deepcopy((design.nodes, design.loads, design.members.volume,
+                                   design.members.start, design.members.end, design.volume))
+    optimize_geometry(frame, moves=moves)
     optimize_geometry(design)
+    for now, then in zip((nodes, start, end, moves.T, moves.lower, moves.upper), kept):
+        np.testing.assert_array_equal(now, then)
+    for now, then in zip((design.nodes, design.loads, design.members.volume,
+                          design.members.start, design.members.end, design.volume),
+                         design_before):
+        np.testing.assert_array_equal(now, then)
     assert np.array_equal(frame.nodes, before)
     assert not frame.nodes.flags.writeable
 

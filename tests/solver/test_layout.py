@@ -1,6 +1,7 @@
 """Core behaviour: immutability, input errors, member adding = full ground structure,
 excluded zones, the equal-strength span limit."""
 
+import dataclasses
 import math
 
 import numpy as np
@@ -31,6 +32,7 @@ def test_member_adding_equals_full_ground_structure(arrangement):
     assert fast.stats["columns"] < full.stats["columns"]
 
 
+@pytest.mark.slow
 def test_coarse_start_does_not_change_the_optimum():
     problem = _bridge(divisions=48, rise=250.0, depth=0.0).to_problem()
     seeded = optimize_layout(problem)
@@ -43,7 +45,7 @@ def test_inputs_are_not_mutated_and_results_are_read_only():
     before = repr(problem)
     design = optimize_layout(problem)
     assert repr(problem) == before
-    with pytest.raises(Exception):
+    with pytest.raises(dataclasses.FrozenInstanceError, match="cannot assign to field 'spacing'"):
         problem.spacing = 1.0  # frozen dataclass
     with pytest.raises(ValueError):
         design.nodes[0, 0] = 1.0
@@ -106,30 +108,12 @@ def test_span_limit_error_names_the_limiting_reach():
     assert f"{limit:.6g} m" in str(err.value)
 
 
-@pytest.mark.parametrize("field,kw,valid", [
-    ("bridge.span", dict(span=-5.0), "a number from 1 to 100000 m"),
-    ("bridge.divisions", dict(divisions=7), "even"),
-    ("bridge.arrangement", dict(arrangement="cantilever"), "repeating"),
-    ("bridge.deck_load", dict(deck_load=0.0), "a number from 1 to 1e+09 N/m"),
-])
-def test_bad_bridge_input_names_field_value_and_range(field, kw, valid):
-    with pytest.raises(InputError) as err:
-        _bridge(**kw)
-    msg = str(err.value)
-    assert field in msg and valid in msg and repr(next(iter(kw.values()))) in msg
-
-
 def test_support_off_grid_is_an_input_error():
     problem = Problem(domain=Domain.rectangle((0.0, 1.0), (0.0, 1.0)), spacing=0.25,
                       material=STEEL, supports=(Support((0.1, 0.0)),),
                       loads=(PointLoad((0.5, 0.5), (0.0, -1.0)),))
     with pytest.raises(InputError, match=r"support\[0\]\.at"):
         optimize_layout(problem)
-
-
-def test_material_rejects_bad_strength():
-    with pytest.raises(InputError, match="material.tension_strength"):
-        Material("x", -1.0, 1.0, 0.0)
 
 
 def test_line_load_is_lumped_with_its_resultant():

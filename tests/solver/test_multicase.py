@@ -150,6 +150,7 @@ def test_whole_span_model_matches_the_half_model_for_symmetric_load(arrangement)
         optimize_layout(b.to_problem()).volume, rel=1e-7)
 
 
+@pytest.mark.slow
 def test_half_span_traffic_makes_the_design_heavier_and_governs_members():
     p = full_span_problem(bridge(PRESETS["steel"]))
     full = optimize_cases(CaseStudy(p, (traffic("full"),)))
@@ -200,6 +201,7 @@ def test_equal_prices_give_price_times_volume():
     assert priced.cost == pytest.approx(7000.0 * priced.volume, rel=1e-12)
 
 
+@pytest.mark.slow
 def test_dearer_compression_shifts_the_design_towards_tension():
     steel = PRESETS["steel"]
     p = dataclasses.replace(full_span_problem(bridge(steel)), compression_material=steel)

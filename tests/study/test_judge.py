@@ -149,6 +149,7 @@ def test_bad_layouts_name_the_field(layout, field):
     assert err.value.field == field
 
 
+@pytest.mark.slow
 def test_cli_judge(tmp_path, bridge_reference):
     _, _, folder = bridge_reference
     scenario = tmp_path / "bracket.toml"
@@ -172,6 +173,7 @@ def test_cli_judge(tmp_path, bridge_reference):
     assert "C (x = 4 m, z = 1 m)" in bad.stderr
 
 
+@pytest.mark.slow
 def test_the_bundled_example_proposal():
     from pathlib import Path
 

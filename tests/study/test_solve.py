@@ -76,6 +76,7 @@ def test_a_bridge_without_a_form_is_the_reference_optimum():
                                                                            rel=1e-12)
 
 
+@pytest.mark.slow
 def test_a_form_is_solved_against_its_reference_and_geometry_option_reaches_it():
     scenario = parse_scenario(bridge_file(type="cable-stayed", stays=5))
     solved = solve_scenario(scenario)
@@ -154,6 +155,7 @@ def test_reading_a_file_imports_no_solver(name):
     assert "bridgeopt.files.scenario" not in used or name == "scenario"
 
 
+@pytest.mark.slow
 def test_the_command_line_and_package_import_no_tables_or_widgets():
     code = ("import sys, bridgeopt, bridgeopt.cli, bridgeopt.study, bridgeopt.sweep.cases; "
             "print([m for m in ('pandas', 'plotly', 'ipywidgets') if m in sys.modules])")

@@ -193,6 +193,7 @@ def test_parquet_matches_csv_and_tables_carry_the_cautions(finished):
     assert all(line in readme for line in CAUTION_LINES)
 
 
+@pytest.mark.slow
 def test_rerun_runs_only_the_missing_cases(finished, tmp_path):
     sweep, _, out, _ = finished
     folder = tmp_path / "resume"
@@ -213,6 +214,7 @@ def test_rerun_runs_only_the_missing_cases(finished, tmp_path):
     assert np.allclose(first["volume_m3"], second["volume_m3"], equal_nan=True)
 
 
+@pytest.mark.slow
 def test_a_second_run_on_the_same_folder_is_refused(finished, tmp_path):
     sweep = finished[0]
     # another process holds the folder, as a running sweep would
@@ -239,6 +241,7 @@ def test_retry_failed_runs_the_bad_cases_again(finished, tmp_path):
     assert len(outcome.ran) == 6 and outcome.failed == 6   # the six 9-division cases
 
 
+@pytest.mark.slow
 def test_a_killed_run_keeps_its_finished_cases(tmp_path):
     """SIGKILL a running `bridgeopt sweep`, then finish it: only the missing cases run."""
     path = tmp_path / "slow.toml"
@@ -271,6 +274,7 @@ def test_a_killed_run_keeps_its_finished_cases(tmp_path):
     assert len(df) == len(sweep) and (df["status"] == "ok").all()
 
 
+@pytest.mark.slow
 def test_ctrl_c_stops_the_sweep_and_keeps_what_finished(tmp_path):
     path = tmp_path / "slow.toml"
     path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = [16, 20]")
@@ -296,6 +300,7 @@ def test_ctrl_c_stops_the_sweep_and_keeps_what_finished(tmp_path):
     assert len(rows) == len(Journal(out).finished()) >= 2
 
 
+@pytest.mark.slow
 def test_every_case_bad_is_an_input_error_exit(tmp_path):
     path = tmp_path / "bad.toml"
     path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = [7, 9]"))
@@ -305,6 +310,7 @@ def test_every_case_bad_is_an_input_error_exit(tmp_path):
     assert "every case failed" in run.stderr and "bridge.divisions" in run.stderr
 
 
+@pytest.mark.slow
 def test_dask_cluster_gives_the_local_results(finished, tmp_path):
     if os.environ.get("CI"):
         import distributed   # CI installs the test extra, which has it
@@ -323,6 +329,7 @@ def test_dask_cluster_gives_the_local_results(finished, tmp_path):
         assert np.allclose(remote[col], local[col], rtol=1e-9, equal_nan=True), col
 
 
+@pytest.mark.slow
 def test_cli_scheduler_option(finished, tmp_path, capsys):
     if os.environ.get("CI"):
         import distributed
@@ -342,6 +349,7 @@ def test_cli_scheduler_option(finished, tmp_path, capsys):
     assert f"Dask scheduler {cluster.scheduler_address}" in out and "3 ok, 0 failed" in out
 
 
+@pytest.mark.slow
 def test_bad_scheduler_address_is_an_input_error(finished, tmp_path, monkeypatch):
     pytest.importorskip("distributed")
     monkeypatch.setattr("bridgeopt.sweep.run.CONNECT_TIMEOUT", 1.0)
@@ -351,6 +359,7 @@ def test_bad_scheduler_address_is_an_input_error(finished, tmp_path, monkeypatch
     assert err.value.field == "--scheduler"
 
 
+@pytest.mark.slow
 def test_cli_sweep(tmp_path):
     path = tmp_path / "options.toml"
     path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = 8"))

@@ -110,12 +110,13 @@ def test_discrete_fan_volume(n, h):
 
 def test_fan_converges_to_the_closed_form():
     """The error against the continuous fan falls as the stay count grows, to < 0.5 %."""
-    errors = [abs(size_frame(fan(n, H_BEST)[0]).volume / continuous(H_BEST) - 1)
-              for n in (4, 8, 16, 32, 64)]
+    volumes = [size_frame(fan(n, H_BEST)[0]).volume for n in (4, 8, 16, 32, 64)]
+    errors = [abs(v / continuous(H_BEST) - 1) for v in volumes]
     assert all(e2 < e1 for e1, e2 in zip(errors, errors[1:]))
     assert errors[-1] < 5e-3
-    # at h = a/sqrt(3) the continuous fan has V = 4 w a^2 / (sqrt(3) sigma)
-    assert continuous(H_BEST) == pytest.approx(4 * W * A ** 2 / (math.sqrt(3) * SIGMA), rel=1e-12)
+    # at h = a/sqrt(3) the continuous fan has V = 4 w a^2 / (sqrt(3) sigma): the package's
+    # 64-stay fan against that value, written out apart from the helper continuous()
+    assert volumes[-1] == pytest.approx(4 * W * A ** 2 / (math.sqrt(3) * SIGMA), rel=5e-3)
 
 
 @pytest.mark.parametrize("n", [4, 16])
@@ -129,7 +130,9 @@ def test_geometry_optimization_finds_the_best_pylon_height(n):
     top = design.nodes[:, 1].max()
     assert top == pytest.approx(best_height(n), rel=2e-3)
     assert design.volume == pytest.approx(discrete(best_height(n), n), rel=1e-5)
-    assert abs(best_height(n) - H_BEST) < abs(best_height(n // 4 or 1) - H_BEST) or n < 16
+    # h_n / (a/sqrt(3)) - 1 = 1/(4n) + O(1/n^2) (module docstring): the height the package
+    # finds lies within 1/(2n) of the continuous fan's a/sqrt(3)
+    assert abs(top / H_BEST - 1) < 0.5 / n
 
 
 def harp(n: int, h: float, bounds=None):
@@ -160,13 +163,12 @@ def test_geometry_optimization_finds_the_best_harp_height():
     assert design.volume == pytest.approx(2 * W * A * A / SIGMA, rel=1e-5)
 
 
-def test_optimum_height_tends_to_a_over_root_three():
-    """h_n (derived) approaches a/sqrt(3) as n grows: a check of the derivation itself."""
-    gaps = [abs(best_height(n) / H_BEST - 1) for n in (2, 8, 32, 128)]
-    assert all(g2 < g1 for g1, g2 in zip(gaps, gaps[1:]))
-    assert gaps[-1] < 5e-3
-    # and V_n is least there: the derivative of V_n in h vanishes
-    n, h = 8, best_height(8)
-    dv = (discrete(h * (1 + 1e-6), n) - discrete(h * (1 - 1e-6), n)) / (2e-6 * h)
-    assert abs(dv) < 1e-6 * discrete(h, n) / h
-    assert np.isfinite(dv)
+@pytest.mark.parametrize("n", [2, 8, 32])
+def test_sized_fan_is_least_at_the_derived_height(n):
+    """The package's sized fan is lighter at h_n (derived) than 1 % either side of it and
+    than at the continuous fan's a/sqrt(3)."""
+    h = best_height(n)
+    at = {k: size_frame(fan(n, k * h)[0]).volume for k in (0.99, 1.0, 1.01)}
+    assert at[1.0] < at[0.99] and at[1.0] < at[1.01]
+    assert at[1.0] < size_frame(fan(n, H_BEST)[0]).volume
+    assert at[1.0] == pytest.approx(discrete(h, n), rel=1e-9)

@@ -53,6 +53,7 @@ def uniform_fine():
     return optimize_layout(uniform.half_model(60)).volume
 
 
+@pytest.mark.slow
 def test_michell_coarse_layout_rationalised(michell_fine):
     raw = optimize_layout(michell.half_model(12))
     clean = optimize_geometry(raw)
@@ -63,6 +64,7 @@ def test_michell_coarse_layout_rationalised(michell_fine):
     assert_equilibrium(clean)
 
 
+@pytest.mark.slow
 def test_uniform_load_coarse_layout_rationalised(uniform_fine):
     raw = optimize_layout(uniform.half_model(12))
     clean = optimize_geometry(raw)
@@ -73,6 +75,7 @@ def test_uniform_load_coarse_layout_rationalised(uniform_fine):
     assert_equilibrium(clean)
 
 
+@pytest.mark.slow
 @pytest.mark.xfail(strict=True, reason="known gap: the rationalised uniform-load layout keeps "
                    "a hanger at every loaded deck node (7 of them from 12 divisions), about "
                    "30 % fewer nodes than the raw layout where 60 % is asked")
@@ -94,6 +97,7 @@ def bridge_pair():
     return raw, optimize_geometry(raw)
 
 
+@pytest.mark.slow
 def test_bridge_with_self_weight_gets_lighter_and_cleaner(bridge_pair):
     raw, clean = bridge_pair
     assert clean.volume < raw.volume
@@ -104,6 +108,7 @@ def test_bridge_with_self_weight_gets_lighter_and_cleaner(bridge_pair):
     assert clean.stats["start_volume"] == pytest.approx(raw.volume, rel=1e-12)
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("seed", [0, 1, 2])
 def test_perturbed_nodes_come_back(bridge_pair, seed):
     """Nodes moved at random by up to a quarter grid step come back to within 0.1 % in volume.
@@ -125,6 +130,7 @@ def test_perturbed_nodes_come_back(bridge_pair, seed):
     assert_equilibrium(back)
 
 
+@pytest.mark.slow
 def test_weightless_michell_volume_is_linear_in_load():
     """Dimensional check (common practice): doubling the load doubles the volume."""
     one = optimize_geometry(optimize_layout(michell.half_model(8)))

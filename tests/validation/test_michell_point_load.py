@@ -81,6 +81,7 @@ def fan_layout_volume(n_arc: int) -> tuple[float, float, float]:
     return float((np.abs(t) * length).sum() / SIGMA), float(-t[0]), resid
 
 
+@pytest.mark.slow
 def test_michell_layout_volume_from_geometry():
     """The fan layout's volume, summed from its pieces, is (1/2 + pi/4) P L / sigma.
 
@@ -113,6 +114,7 @@ def refinement():
     return {n: optimize_layout(half_model(n)) for n in (20, 40, 60)}
 
 
+@pytest.mark.slow
 def test_lp_volume_converges_to_michell_from_above(refinement):
     """Ground-structure optima are upper bounds that approach V_MICHELL as the grid refines.
 
@@ -133,6 +135,7 @@ def test_lp_volume_converges_to_michell_from_above(refinement):
         assert_equilibrium(d, rtol=1e-8)
 
 
+@pytest.mark.slow
 def test_lp_reactions_match_michell_layout(refinement):
     """Support reactions of the half model approach (P/2, P/2).
 

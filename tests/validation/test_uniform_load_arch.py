@@ -101,6 +101,7 @@ def richardson(v_coarse: float, v_fine: float, order: float) -> float:
     return v_fine - (v_coarse - v_fine) / (2.0 ** order - 1.0)
 
 
+@pytest.mark.slow
 def test_refinement_series_converges_from_above(series):
     """Volumes decrease with every halving of the spacing; the limit is below them all.
 
@@ -126,6 +127,7 @@ def test_refinement_series_converges_from_above(series):
         assert 0.78 * W * L ** 2 / SIGMA < limit < V_ARCH
 
 
+@pytest.mark.slow
 def test_fine_grids_beat_the_parabolic_arch(series):
     """From 20 divisions on, the LP layout is lighter than the best arch with hangers.
 
@@ -138,6 +140,7 @@ def test_fine_grids_beat_the_parabolic_arch(series):
         assert series[n].volume < V_ARCH
 
 
+@pytest.mark.slow
 def test_designs_are_in_equilibrium(series):
     """Every design of the series carries the total load w L (common practice statics)."""
     for n, d in series.items():
@@ -148,6 +151,7 @@ def test_designs_are_in_equilibrium(series):
         assert d.reactions[:, 2].sum() == pytest.approx(W * L / 2, rel=1e-9)
 
 
+@pytest.mark.slow
 def test_domain_height_is_not_binding(series):
     """A taller domain (0.5 L) gives the same optimum on the 40-division grid (1e-9).
 

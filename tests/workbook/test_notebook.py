@@ -88,6 +88,7 @@ def test_report_command_refuses_a_bad_param_and_a_missing_directory(tmp_path, ca
     assert "-o" in capsys.readouterr().err
 
 
+@pytest.mark.slow
 def test_report_help_lists_the_command():
     run = subprocess.run([sys.executable, "-m", "bridgeopt", "--help"], capture_output=True,
                          text=True, timeout=60)
@@ -142,6 +143,7 @@ def test_explorer_caches_solves_on_the_slider_values(stand_in_form):
                                                        "pylons"))
 
 
+@pytest.mark.slow
 def test_export_button_writes_the_report(tmp_path, monkeypatch):
     monkeypatch.delenv("BRIDGEOPT_REPORT", raising=False)
     nb = nbformat.v4.new_notebook(cells=[
@@ -163,6 +165,7 @@ def test_export_button_writes_the_report(tmp_path, monkeypatch):
     assert workbook.export_button(path, tmp_path / "x.html") is None
 
 
+@pytest.mark.slow
 def test_explorer_traffic_cases_are_solved_drawn_and_summarised():
     """Traffic cases on top of the deck load: the several-case optimum must carry the
     heaviest case too, so (weightless, same grid) it is at least that case's own optimum

@@ -47,6 +47,7 @@ def _errors(nb):
             if o.output_type == "error" or "bridgeopt-error" in json.dumps(o.get("data", {}))]
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("path", [p for p in NOTEBOOKS if p.stem != "explorer"],
                          ids=lambda p: p.stem)
 def test_study_runs_headlessly(path):
@@ -86,6 +87,7 @@ print("SHOWN" + json.dumps([o.get("data", {}).get("application/vnd.plotly.v1+jso
 """
 
 
+@pytest.mark.slow
 def test_explorer_sliders_resolve_redraw_and_show_errors_in_a_kernel():
     tmp = _appended(STUDIES / "explorer.ipynb", PROBE, SHOWN)
     try:

@@ -50,6 +50,7 @@ def report(request, tmp_path_factory):
     return request.param, out
 
 
+@pytest.mark.slow
 def test_report_is_one_file_with_inputs_results_and_cautions(report):
     name, path = report
     text = path.read_text(encoding="utf-8")
@@ -74,6 +75,7 @@ def test_remote_reference_check_catches_web_addresses():
     assert remote_references('<script>var u = "https://plot.ly";</script>') == []
 
 
+@pytest.mark.slow
 def test_report_renders_offline_in_headless_chromium(report):
     name, path = report
     browser = _chromium()
