@@ -16,6 +16,7 @@ import math
 import os
 import signal
 import threading
+from contextlib import contextmanager
 from pathlib import Path
 from typing import Any
 
@@ -71,7 +72,36 @@ def _entry(line: bytes) -> tuple[str, dict] | None:
 
 
 #: Signals held while a journal line and its in-memory row are written together.
-_STOP_SIGNALS = {signal.SIGINT, signal.SIGTERM}
+_STOP_SIGNALS = (signal.SIGINT, signal.SIGTERM)
+
+
+@contextmanager
+def _stop_signals_held():
+    """Hold Ctrl-C and SIGTERM for a few lines; act on them, as before, when done.
+
+    Python runs signal handlers in the main thread, whichever thread the system gave
+    the signal to, so swapping the handlers is enough (masking the main thread is not:
+    the worker pool's threads would take the signal instead).
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    caught: list[int] = []
+    old = {s: signal.signal(s, lambda signum, frame: caught.append(signum))
+           for s in _STOP_SIGNALS}
+    try:
+        yield
+    finally:
+        for s, handler in old.items():
+            signal.signal(s, handler)
+        for signum in caught[:1]:
+            handler = old[signum]
+            if callable(handler):
+                handler(signum, None)
+            elif handler == signal.SIG_DFL:
+                if signum == signal.SIGINT:
+                    raise KeyboardInterrupt
+                os.kill(os.getpid(), signum)
 
 
 class Journal:
@@ -163,14 +193,8 @@ class Journal:
         row = {k: _plain(v) for k, v in row.items()}
         # Ctrl-C between the write and the update of ``rows`` would leave a journal line the
         # result tables miss: hold the stop signals for these few lines (main thread only)
-        main = threading.current_thread() is threading.main_thread()
-        try:
-            if main:  # blocked signals are delivered when unblocked, just below
-                signal.pthread_sigmask(signal.SIG_BLOCK, _STOP_SIGNALS)
+        with _stop_signals_held():
             self._append(key, row)
-        finally:
-            if main:
-                signal.pthread_sigmask(signal.SIG_UNBLOCK, _STOP_SIGNALS)
 
     def _append(self, key: str, row: dict) -> None:
         try:
