@@ -45,7 +45,8 @@ from scipy.optimize import linprog
 from bridgeopt.solver.design import Design
 from bridgeopt.solver.elements import SENSES
 from bridgeopt.errors import InputError, SolveError
-from bridgeopt.solver.frame import Frame, _lp_data, frame_from_design, position_tolerance, size_frame
+from bridgeopt.solver.frame import (Frame, frame_from_design, frame_lp_data, position_tolerance,
+                                    size_frame)
 from bridgeopt.model.plane import points_in_polygon
 from bridgeopt.solver.ground import Grid, members_clear_of_zones
 from bridgeopt.solver.layout import scales
@@ -210,7 +211,7 @@ class _Geometry:
         nodes = self.nodes(p)
         if not _allowed(self.frame, nodes, self.vertical, self.ref_len):
             return None
-        data, _, _ = _lp_data(self.frame.moved(nodes))
+        data, _, _ = frame_lp_data(self.frame.moved(nodes))
         try:
             return data, solve_lp(data, member_adding=False)
         except SolveError:
@@ -439,7 +440,7 @@ def _relayout(frame: Frame) -> Frame:
                     step=(1.0, 1.0), origin=(0.0, 0.0))
         keep = members_clear_of_zones(frame.problem, grid, a, b)
         a, b = a[keep], b[keep]
-    data, _, _ = _lp_data(Frame(problem=frame.problem, nodes=frame.nodes, start=a, end=b))
+    data, _, _ = frame_lp_data(Frame(problem=frame.problem, nodes=frame.nodes, start=a, end=b))
     try:
         sol = solve_lp(data, member_adding=False)
     except SolveError:  # pragma: no cover - contains the frame's own members

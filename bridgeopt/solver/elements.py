@@ -32,7 +32,7 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = ["PHI_LIMIT", "curved_coefficients", "vertical_coefficients",
-           "centreline", "sag", "SENSES"]
+           "element_coefficients", "centreline", "sag", "SENSES"]
 
 SENSES = ("tension", "compression")
 
@@ -108,6 +108,51 @@ def vertical_coefficients(h, k: float, sense: str):
     if sense == "compression":  # stands on P: upper end force F, lower F e^{kh}
         return cost, -grow, np.ones_like(h)
     raise ValueError(f"sense must be 'tension' or 'compression', not {sense!r}")
+
+
+def element_coefficients(lx, dz, k: float, sense: str, vertical) -> tuple[np.ndarray, np.ndarray]:
+    """Cost (m,) and end-force factors (m, 4) of elements with reach ``lx`` and rise ``dz``.
+
+    The one statement of an element's LP coefficients: curved elements (and
+    straight bars, k = 0) by :func:`curved_coefficients`, ``vertical`` ones by the
+    uniform-strength bar of :func:`vertical_coefficients` (their ``lx`` is
+    ignored).
+
+    Parameters
+    ----------
+    lx : (m,) array_like
+        Horizontal projection xQ - xP (> 0 unless vertical). [L]
+    dz : (m,) array_like
+        Rise zQ - zP (> 0 for a vertical element). [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+    vertical : (m,) bool array
+        Which elements are vertical.
+
+    Returns
+    -------
+    cost : (m,) ndarray
+        sigma*volume per unit H (or F); nan where no element can span. [L]
+    vals : (m, 4) ndarray
+        End-force factors (P x, P z, Q x, Q z); vertical elements have zero x
+        factors. [-]
+    """
+    lx, dz = np.asarray(lx, dtype=float), np.asarray(dz, dtype=float)
+    vertical = np.asarray(vertical, dtype=bool)
+    cost = np.empty(len(lx))
+    vals = np.zeros((len(lx), 4))
+    curved = ~vertical
+    if curved.any():
+        c, pxf, pzf, qxf, qzf = curved_coefficients(lx[curved], dz[curved], k, sense)
+        cost[curved] = c
+        vals[curved] = np.column_stack([pxf, pzf, qxf, qzf])
+    if vertical.any():
+        c, pzf, qzf = vertical_coefficients(dz[vertical], k, sense)
+        cost[vertical] = c
+        vals[vertical, 1] = pzf
+        vals[vertical, 3] = qzf
+    return cost, vals
 
 
 def _end_slope(p, q, k: float, sense: str) -> float:

@@ -47,7 +47,7 @@ from bridgeopt.cautions import CAUTIONS
 from bridgeopt.solver.design import Design
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.frame import Frame, position_tolerance, size_frame
-from bridgeopt.solver.layout import _solve, design_from_lp
+from bridgeopt.solver.layout import design_from_lp, solve_layout_lp
 from bridgeopt.model.problem import Problem
 from bridgeopt.files.proposal import Proposal
 
@@ -94,8 +94,8 @@ def _reference_with_field(problem: Problem):
     """The reference optimum and its virtual displacement field u(x, z) [m3/N]."""
     from scipy.interpolate import LinearNDInterpolator, NearestNDInterpolator
 
-    grid, f, data, sol, refs = _solve(problem, member_adding=True, batch=None,
-                                      coarse_start=True)
+    grid, f, data, sol, refs = solve_layout_lp(problem, member_adding=True, batch=None,
+                                               coarse_start=True)
     reference = design_from_lp(problem, grid, data, sol, f, *refs)
     ref_len, ref_force, ref_sigma = refs
     u = sol.duals.reshape(-1, 2) * ref_len / ref_sigma
