@@ -32,7 +32,7 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = ["PHI_LIMIT", "curved_coefficients", "vertical_coefficients",
-           "element_coefficients", "centreline", "sag", "SENSES"]
+           "element_coefficients", "bar_factors", "centreline", "sag", "SENSES"]
 
 SENSES = ("tension", "compression")
 
@@ -153,6 +153,21 @@ def element_coefficients(lx, dz, k: float, sense: str, vertical) -> tuple[np.nda
         vals[vertical, 1] = pzf
         vals[vertical, 3] = qzf
     return cost, vals
+
+
+def bar_factors(unit: np.ndarray) -> np.ndarray:
+    """End-force factors (P x, P z, Q x, Q z) of straight bars of axial force q, (m, 4).
+
+    A bar from P to Q with tension q pulls P by q n and Q by -q n (n the unit
+    vector from P to Q).
+
+    Parameters
+    ----------
+    unit : (m, 2) float array
+        Unit vectors from P to Q. [-]
+    """
+    unit = np.asarray(unit, dtype=float)
+    return np.column_stack([unit[:, 0], unit[:, 1], -unit[:, 0], -unit[:, 1]])
 
 
 def _end_slope(p, q, k: float, sense: str) -> float:

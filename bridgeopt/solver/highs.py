@@ -28,14 +28,16 @@ from scipy import sparse
 
 from bridgeopt.errors import SolveError
 
-__all__ = ["INF", "ColumnSet", "entry_columns", "triplet_columns", "unit_columns",
+__all__ = ["INF", "FEASIBILITY_TOL", "DEFAULT_TOL", "ColumnSet", "entry_columns", "triplet_columns", "unit_columns",
            "stack_columns", "node_rows", "new_highs", "add_columns", "model_status",
            "solve_columns", "LPResult", "raise_for_status"]
 
 #: HiGHS's infinite bound.
 INF = highspy.kHighsInf
-#: Primal and dual feasibility tolerance of every solve (the LPs are dimensionless).
+#: Primal and dual feasibility tolerance of the layout LPs (they are dimensionless).
 FEASIBILITY_TOL = 1e-9
+#: HiGHS's own default feasibility tolerance.
+DEFAULT_TOL = 1e-7
 
 
 @dataclass(frozen=True)
@@ -161,7 +163,8 @@ def stack_columns(*sets: ColumnSet) -> ColumnSet:
                      sparse.hstack([s.matrix for s in sets], format="csc"))
 
 
-def new_highs(*, ipm: bool, crossover: bool = False) -> highspy.Highs:
+def new_highs(*, ipm: bool, crossover: bool = False,
+              tolerance: float = FEASIBILITY_TOL) -> highspy.Highs:
     """A silent HiGHS instance (its start-up banner does not reach stdout).
 
     Parameters
@@ -170,6 +173,8 @@ def new_highs(*, ipm: bool, crossover: bool = False) -> highspy.Highs:
         Interior point method; otherwise the dual simplex method.
     crossover : bool
         With ``ipm``, cross over to a vertex (exact duals, clean forces).
+    tolerance : float
+        Primal and dual feasibility tolerance. [-]
     """
     fd = os.dup(1)
     try:
@@ -185,8 +190,8 @@ def new_highs(*, ipm: bool, crossover: bool = False) -> highspy.Highs:
         h.setOptionValue("run_crossover", "on" if crossover else "off")
     else:
         h.setOptionValue("solver", "simplex")
-    h.setOptionValue("primal_feasibility_tolerance", FEASIBILITY_TOL)
-    h.setOptionValue("dual_feasibility_tolerance", FEASIBILITY_TOL)
+    h.setOptionValue("primal_feasibility_tolerance", tolerance)
+    h.setOptionValue("dual_feasibility_tolerance", tolerance)
     return h
 
 
@@ -233,7 +238,7 @@ class LPResult:
 
 
 def solve_columns(columns: ColumnSet, row_lower, row_upper, *, ipm: bool = False,
-                  crossover: bool = False) -> LPResult:
+                  crossover: bool = False, tolerance: float = FEASIBILITY_TOL) -> LPResult:
     """Minimise ``cost . x`` over ``columns`` with ``row_lower <= A x <= row_upper``.
 
     Parameters
@@ -244,6 +249,8 @@ def solve_columns(columns: ColumnSet, row_lower, row_upper, *, ipm: bool = False
         Row bounds (equal for an equality). [-]
     ipm, crossover : bool
         Method, as :func:`new_highs`.
+    tolerance : float
+        Feasibility tolerance, as :func:`new_highs`. [-]
     """
     mat = columns.matrix
     n_row, n_col = mat.shape
@@ -257,7 +264,7 @@ def solve_columns(columns: ColumnSet, row_lower, row_upper, *, ipm: bool = False
     lp.a_matrix_.start_ = mat.indptr.astype(np.int32)
     lp.a_matrix_.index_ = mat.indices.astype(np.int32)
     lp.a_matrix_.value_ = mat.data.astype(float)
-    h = new_highs(ipm=ipm, crossover=crossover)
+    h = new_highs(ipm=ipm, crossover=crossover, tolerance=tolerance)
     h.passModel(lp)
     h.run()
     status = model_status(h)
