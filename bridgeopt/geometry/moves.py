@@ -79,7 +79,15 @@ class NodeMoves:
 
 
 def deck_homes(frame: Frame, roles: NodeRoles | None = None) -> np.ndarray:
-    """x of the frame's nodes on line loads: where deck nodes may slide from. [m]"""
+    """x of the frame's nodes on line loads: where deck nodes may slide from. [m]
+
+    Parameters
+    ----------
+    frame : Frame
+        The frame (nodes [m], problem).
+    roles : NodeRoles, optional
+        Its node roles (default: :func:`~bridgeopt.geometry.topology.node_roles`).
+    """
     roles = roles or node_roles(frame)
     return np.sort(np.asarray(frame.nodes)[roles.z_fixed, 0])
 
@@ -90,6 +98,17 @@ def default_moves(frame: Frame, roles: NodeRoles | None = None, *,
 
     ``deck_slide`` is the largest slide of a loaded deck node, in grid steps, from
     the nearest of ``homes`` (default: :func:`deck_homes` of this frame). [-, m]
+
+    Parameters
+    ----------
+    frame : Frame
+        The frame whose nodes move (nodes [m], problem).
+    roles : NodeRoles, optional
+        Its node roles (default: :func:`~bridgeopt.geometry.topology.node_roles`).
+    deck_slide : float
+        Largest slide of a loaded deck node along its line. [grid steps]
+    homes : float array, optional
+        x of the deck nodes' starting places (default :func:`deck_homes`). [m]
     """
     roles = roles or node_roles(frame)
     homes = deck_homes(frame, roles) if homes is None else np.sort(np.asarray(homes, float))

@@ -87,7 +87,17 @@ def _load_derivatives(problem: Problem, data: LPData) -> sparse.csr_matrix:
 
 
 def linearise(problem: Problem, data: LPData, sol: LPSolution):
-    """``gc``, ``G`` and ``R`` of the module docstring at the optimum ``sol``."""
+    """``gc``, ``G`` and ``R`` of the module docstring at the optimum ``sol``.
+
+    Parameters
+    ----------
+    problem : Problem
+        The frame's problem (line loads, scales).
+    data : LPData
+        The dimensionless LP at the current nodes.
+    sol : LPSolution
+        Its optimum.
+    """
     n2 = 2 * len(data.xz)
     gc = np.zeros(n2)
     g_rows, g_cols, g_vals = [], [], []
@@ -118,6 +128,15 @@ def volume_gradient(problem: Problem, data: LPData, sol: LPSolution) -> np.ndarr
     """dV*/dX of the dimensionless LP optimum, (2n,), x and z interleaved.
 
     Envelope theorem: gc - G^T u + R^T u, with u the equality-row duals.
+
+    Parameters
+    ----------
+    problem : Problem
+        The frame's problem (line loads, scales).
+    data : LPData
+        The dimensionless LP at the current nodes.
+    sol : LPSolution
+        Its optimum (forces and duals).
     """
     gc, G, R = linearise(problem, data, sol)
     u = sol.duals

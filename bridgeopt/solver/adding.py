@@ -48,7 +48,13 @@ class MemberModel(Protocol):
     in_lp: np.ndarray
 
     def add(self, pair: np.ndarray, group: np.ndarray) -> None:
-        """Put the members (pair[i], group[i]) in the LP (those in it already are skipped)."""
+        """Put the members (pair[i], group[i]) in the LP (those in it already are skipped).
+
+        Parameters
+        ----------
+        pair, group : (m,) int arrays
+            Candidate pair and group of each member. [-]
+        """
 
     def solve(self) -> str:
         """Solve the LP over its members: ``"optimal"``, ``"infeasible"`` or HiGHS's words."""
@@ -89,7 +95,15 @@ def proven_gap(ratio_max: float) -> float:
 
 
 def strongest(ratio: np.ndarray, limit: int) -> np.ndarray:
-    """Indices of the ``limit`` largest entries of ``ratio`` (all when there are fewer)."""
+    """Indices of the ``limit`` largest entries of ``ratio`` (all when there are fewer).
+
+    Parameters
+    ----------
+    ratio : (m,) float array
+        Violation ratios work/cost. [-]
+    limit : int
+        Most indices returned. [-]
+    """
     if len(ratio) <= limit:
         return np.arange(len(ratio))
     return np.argpartition(-ratio, limit)[:limit]

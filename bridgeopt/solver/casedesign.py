@@ -88,6 +88,11 @@ class CaseDesign:
 
         Member end forces (q n on the start node, -q n on the end node), half of
         each member's weight at each end, applied loads and reactions.
+
+        Parameters
+        ----------
+        case : int
+            Index of the load case. [-]
         """
         r = np.array(self.loads[case], dtype=float)
         unit = (self.nodes[self.end] - self.nodes[self.start]) / self.length[:, None]

@@ -193,6 +193,16 @@ def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
 
     Cable: z(x) = zP + ln(cos tP / cos(tP + k x)) / k; arch: the mirror image
     with the curvature reversed (tP here the end angle at P).
+
+    Parameters
+    ----------
+    p, q : (2,) float arrays
+        End points, P left of Q. [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+    n : int
+        Number of points on a curved centreline. [-]
     """
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)
@@ -211,6 +221,14 @@ def sag(p, q, k: float, sense: str) -> float:
 
     Zero for straight and vertical elements.  At the point of largest sag the
     centreline's slope equals the chord's.
+
+    Parameters
+    ----------
+    p, q : (2,) float arrays
+        End points, P left of Q. [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
     """
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)

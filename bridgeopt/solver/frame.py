@@ -25,19 +25,25 @@ from bridgeopt.solver.design import Design
 from bridgeopt.solver.elements import PHI_LIMIT, SENSES
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.ground import Grid
-from bridgeopt.solver.layout import (design_from_lp, line_load_shares, lump_loads,
-                                     restraint_rows, scaled_lp_data, scales)
+from bridgeopt.solver.layout import design_from_lp, scaled_lp_data, scales
+from bridgeopt.solver.lumping import lump_loads, restraint_rows
 from bridgeopt.solver.lp import LPData, solve_lp
 from bridgeopt.model.problem import Problem
 
 __all__ = ["Frame", "size_frame", "frame_loads", "frame_restraints", "frame_from_design",
-           "position_tolerance", "frame_lp_data", "nodes_on_line_load", "line_load_shares"]
+           "position_tolerance", "frame_lp_data", "nodes_on_line_load"]
 
 _SENSE_CHOICES = ("tension", "compression", "either")
 
 
 def position_tolerance(problem: Problem) -> float:
-    """Distance within which two points count as the same node. [m]"""
+    """Distance within which two points count as the same node. [m]
+
+    Parameters
+    ----------
+    problem : Problem
+        Its domain gives the reference length.
+    """
     return 1e-6 * scales(problem)[0]
 
 
@@ -177,7 +183,13 @@ class Frame:
         return len(self.start)
 
     def moved(self, nodes: np.ndarray) -> "Frame":
-        """The same members on other node coordinates. [m]"""
+        """The same members on other node coordinates.
+
+        Parameters
+        ----------
+        nodes : (n, 2) float array
+            The new node coordinates. [m]
+        """
         return Frame(problem=self.problem, nodes=nodes, start=self.start, end=self.end,
                      senses=self.senses, group=self.group)
 
@@ -238,6 +250,11 @@ def _check_reach(frame: Frame) -> None:
 def size_frame(frame: Frame) -> Design:
     """Least-volume member forces of ``frame`` (one LP over exactly its members).
 
+    Parameters
+    ----------
+    frame : Frame
+        Nodes [m], members, their allowed senses and groups, and the problem.
+
     Returns
     -------
     Design
@@ -278,7 +295,15 @@ def size_frame(frame: Frame) -> Design:
 
 
 def frame_from_design(design: Design, *, senses: str = "either") -> Frame:
-    """The members of ``design`` as a frame (each member free to take ``senses``)."""
+    """The members of ``design`` as a frame (each member free to take ``senses``).
+
+    Parameters
+    ----------
+    design : Design
+        A solved design with its problem.
+    senses : {"either", "tension", "compression"}
+        The sense every member may take.
+    """
     m = design.members
     return Frame(problem=design.problem, nodes=np.array(design.nodes), start=np.array(m.start),
                  end=np.array(m.end), senses=np.full(len(m), senses),

@@ -196,7 +196,15 @@ def new_highs(*, ipm: bool, crossover: bool = False,
 
 
 def add_columns(h: highspy.Highs, columns: ColumnSet) -> None:
-    """Append ``columns`` to the LP held by ``h`` (its rows must exist)."""
+    """Append ``columns`` to the LP held by ``h`` (its rows must exist).
+
+    Parameters
+    ----------
+    h : highspy.Highs
+        A HiGHS instance holding the LP's rows.
+    columns : ColumnSet
+        The columns to append.
+    """
     mat = columns.matrix
     if columns.size == 0:
         return
@@ -205,7 +213,13 @@ def add_columns(h: highspy.Highs, columns: ColumnSet) -> None:
 
 
 def model_status(h: highspy.Highs) -> str:
-    """``"optimal"``, ``"infeasible"`` or HiGHS's own words for the model status."""
+    """``"optimal"``, ``"infeasible"`` or HiGHS's own words for the model status.
+
+    Parameters
+    ----------
+    h : highspy.Highs
+        A HiGHS instance after ``run()``.
+    """
     status = h.getModelStatus()
     if status == highspy.HighsModelStatus.kOptimal:
         return "optimal"

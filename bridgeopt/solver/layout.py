@@ -20,139 +20,12 @@ from bridgeopt.solver.elements import PHI_LIMIT, SENSES, centreline, sag
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.ground import Grid, build_grid, candidate_pairs
 from bridgeopt.solver.lp import LPData, LPSolution, column_entries, solve_lp
+from bridgeopt.solver.lumping import nodal_loads, restrained_rows  # also for files/
 from bridgeopt.model.materials import GRAVITY
 from bridgeopt.model.problem import Problem
 
 __all__ = ["optimize_layout", "nodal_loads", "restrained_rows", "design_from_lp", "scales",
-           "line_load_shares", "lump_loads", "restraint_rows", "scaled_lp_data", "solve_layout_lp"]
-
-
-def line_load_shares(x: np.ndarray, start: float | None = None,
-                     end: float | None = None) -> np.ndarray:
-    """Share of a unit uniform line load on [start, end] taken by nodes at ``x``. [m]
-
-    The one lumping rule of line loads: linear (hat) shape functions between
-    neighbouring nodes, so the shares have the load's resultant and moment; an
-    interval wholly under the load sends half of it to either end.
-
-    Parameters
-    ----------
-    x : (p,) float array
-        Sorted positions along the line of the nodes on it, covering the load. [m]
-    start, end : float, optional
-        Ends of the load (default: the first and last node). [m]
-    """
-    x = np.asarray(x, dtype=float)
-    xs = x[0] if start is None else start
-    xe = x[-1] if end is None else end
-    x0, x1 = x[:-1], x[1:]
-    lo, hi = np.maximum(x0, xs), np.minimum(x1, xe)
-    h = x1 - x0
-    with np.errstate(invalid="ignore", divide="ignore"):
-        part = (x1 * (hi - lo) - 0.5 * (hi * hi - lo * lo)) / h
-    share0 = np.where((lo == x0) & (hi == x1), 0.5 * h, np.where(hi > lo, part, 0.0))
-    share1 = np.where(hi > lo, (hi - lo) - share0, 0.0)
-    share = np.zeros(len(x))
-    share[:-1] += share0
-    share[1:] += share1
-    return share
-
-
-def lump_loads(problem: Problem, n: int, node_of, line_nodes) -> np.ndarray:
-    """Point and line loads of ``problem`` lumped at ``n`` nodes, (n, 2). [N]
-
-    Parameters
-    ----------
-    problem : Problem
-        Its ``loads`` and ``line_loads`` are lumped.
-    n : int
-        Number of nodes. [-]
-    node_of : callable
-        ``node_of(point, field) -> int``: the node at a point load (raising
-        :class:`InputError` naming ``field`` if none).
-    line_nodes : callable
-        ``line_nodes(i, line_load) -> (nodes, x)``: the nodes on line load i,
-        sorted along it, and their positions along it [m].
-    """
-    f = np.zeros((n, 2))
-    for i, load in enumerate(problem.loads):
-        f[node_of(load.at, f"load[{i}].at")] += load.force
-    for i, q in enumerate(problem.line_loads):
-        on, x = line_nodes(i, q)
-        f[on, 1] -= q.intensity * line_load_shares(x, q.start[0], q.end[0])
-    return f
-
-
-def nodal_loads(problem: Problem, grid: Grid) -> np.ndarray:
-    """Applied loads lumped at grid nodes, (n, 2). [N]
-
-    A line load is shared between the nodes on its line with linear (hat)
-    shape functions (:func:`line_load_shares`), so the lumped loads have the
-    same resultant and moment; its ends may lie between nodes.
-
-    Parameters
-    ----------
-    problem : Problem
-        Loads and line loads to lump.
-    grid : Grid
-        The ground structure's nodes. [m]
-    """
-    tol = 1e-6 * max(grid.step)
-
-    def line_nodes(i, q):
-        (xs, z), (xe, _) = q.start, q.end
-        on = np.nonzero((np.abs(grid.xz[:, 1] - z) <= tol)
-                        & (grid.xz[:, 0] >= xs - grid.step[0] + tol)
-                        & (grid.xz[:, 0] <= xe + grid.step[0] - tol))[0]
-        on = on[np.argsort(grid.xz[on, 0])]
-        x = grid.xz[on, 0]
-        if len(on) < 2 or x[0] > xs + tol or x[-1] < xe - tol:
-            raise InputError(f"line_load[{i}].from", [xs, z],
-                             "a horizontal line through grid nodes of the domain, "
-                             "from one node to another")
-        return on, x
-
-    return lump_loads(problem, grid.n, grid.node_at, line_nodes)
-
-
-def restraint_rows(problem: Problem, xz: np.ndarray, node_of, tol: float) -> np.ndarray:
-    """Equilibrium rows (2*node + direction) that carry a free reaction.
-
-    Parameters
-    ----------
-    problem : Problem
-        Its supports and mirror lines.
-    xz : (n, 2) float array
-        Node coordinates. [m]
-    node_of : callable
-        ``node_of(point, field) -> int``: the node at a support.
-    tol : float
-        Distance within which a node lies on a mirror line. [m]
-    """
-    rows = set()
-    for i, s in enumerate(problem.supports):
-        node = node_of(s.at, f"support[{i}].at")
-        if "x" in s.fix:
-            rows.add(2 * node)
-        if "z" in s.fix:
-            rows.add(2 * node + 1)
-    for m in problem.mirror_lines:
-        for node in np.nonzero(np.abs(xz[:, 0] - m) <= tol)[0]:
-            rows.add(2 * int(node))
-    return np.array(sorted(rows), dtype=np.int64)
-
-
-def restrained_rows(problem: Problem, grid: Grid) -> np.ndarray:
-    """Equilibrium rows (2*node + direction) of the grid that carry a free reaction.
-
-    Parameters
-    ----------
-    problem : Problem
-        Its supports and mirror lines.
-    grid : Grid
-        The ground structure's nodes. [m]
-    """
-    return restraint_rows(problem, grid.xz, grid.node_at, 1e-6 * max(grid.step))
+           "scaled_lp_data", "solve_layout_lp"]
 
 
 def _span_limit_message(problem: Problem, grid: Grid, a, b) -> str | None:
@@ -200,7 +73,13 @@ def _coarse_duals(problem: Problem, grid: Grid) -> np.ndarray | None:
 
 
 def scales(problem: Problem) -> tuple[float, float, float]:
-    """Reference length [m], force [N] and stress [Pa] of the dimensionless LP."""
+    """Reference length [m], force [N] and stress [Pa] of the dimensionless LP.
+
+    Parameters
+    ----------
+    problem : Problem
+        Its domain, loads and tension strength.
+    """
     x0, x1, z0, z1 = problem.domain.bounds
     return max(x1 - x0, z1 - z0), problem.total_applied_load(), problem.strength("tension")
 
@@ -355,7 +234,25 @@ def _keep_curves_clear(problem: Problem, grid: Grid, data: LPData, sol: LPSoluti
 def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
                    f: np.ndarray, ref_len: float, ref_force: float, ref_sigma: float,
                    group: np.ndarray | None = None) -> Design:
-    """Turn a dimensionless LP optimum into a :class:`Design` in SI units."""
+    """Turn a dimensionless LP optimum into a :class:`Design` in SI units.
+
+    Parameters
+    ----------
+    problem : Problem
+        The problem solved.
+    grid : Grid
+        Node coordinates of the LP. [m]
+    data : LPData
+        The dimensionless LP.
+    sol : LPSolution
+        Its optimum.
+    f : (n, 2) float array
+        Lumped nodal loads. [N]
+    ref_len, ref_force, ref_sigma : float
+        Reference length [m], force [N] and stress [Pa] of the LP.
+    group : (m,) str array, optional
+        Element-group label of each active member (default ``"member"``).
+    """
     n_members = len(sol.pair)
     a, b = data.a[sol.pair], data.b[sol.pair]
     start_f = np.zeros((n_members, 2))

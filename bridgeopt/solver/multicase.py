@@ -83,8 +83,10 @@ from bridgeopt.model.materials import GRAVITY
 from bridgeopt.solver.adding import add_members
 from bridgeopt.solver.casedesign import CaseDesign, case_design
 from bridgeopt.solver.ground import build_grid, candidate_pairs
-from bridgeopt.solver.highs import INF, raise_for_status, solve_columns, triplet_columns
-from bridgeopt.solver.layout import nodal_loads, restrained_rows
+from bridgeopt.solver.elements import bar_factors
+from bridgeopt.solver.highs import (INF, node_rows, raise_for_status, solve_columns,
+                                    triplet_columns)
+from bridgeopt.solver.lumping import nodal_loads, restrained_rows
 from bridgeopt.solver.lp import PRICE_CHUNK, PRICE_TOL
 
 __all__ = ["CaseDesign", "optimize_cases", "single_case_reference", "MAX_FULL_COLUMNS"]
@@ -180,6 +182,8 @@ class _Model:
         ri, ci, vi = [], [], []
         col = np.arange(m)
         half_w = -0.5 * kw * length
+        # force columns: straight bars of free axial force, plus their stress rows
+        bar_rows, bar = node_rows(ea, eb), bar_factors(unit)
         for k in range(K):
             off = k * n2
             # a columns: lumped weight in z rows, stress rows
@@ -187,10 +191,9 @@ class _Model:
             ci += [col, col, col, col]
             vi += [half_w, half_w, -st, sc]
             qc = m * (1 + k) + col
-            ri += [off + 2 * ea, off + 2 * ea + 1, off + 2 * eb, off + 2 * eb + 1,
-                   rows_t[k], rows_c[k]]
+            ri += [*(off + bar_rows).T, rows_t[k], rows_c[k]]
             ci += [qc] * 6
-            vi += [unit[:, 0], unit[:, 1], -unit[:, 0], -unit[:, 1], np.ones(m), np.ones(m)]
+            vi += [*bar.T, np.ones(m), np.ones(m)]
             rc = m * (1 + K) + k * nfix + np.arange(nfix)
             ri.append(off + d.fixed)
             ci.append(rc)
