@@ -5,6 +5,10 @@ the smaller end force F of a vertical one), all >= 0, one column per candidate
 member and sense, plus free reaction variables on restrained directions.  Rows
 are nodal equilibrium, two per node: ``B q + r = -f``.
 
+Member adding runs by the shared driver of :mod:`bridgeopt.solver.adding`; the
+pricing step (the dual check) is :func:`price_candidates`, the columns are
+stated by :func:`lp_columns` (:mod:`bridgeopt.solver.highs`).
+
 Everything here is dimensionless (see :mod:`bridgeopt.solver.layout`): HiGHS's
 tolerances are absolute, so the LP must be stated with numbers of order one.
 

@@ -146,7 +146,14 @@ def _geometry(data: _Data, pair: np.ndarray):
 
 
 class _Model:
-    """The LP over a set of (pair, group) members, rebuilt from scratch each round."""
+    """The LP over a set of (pair, group) members, for :func:`~bridgeopt.solver.adding.add_members`.
+
+    Unlike the single-case LP (:mod:`bridgeopt.solver.lp`), which appends columns
+    to a live HiGHS instance so that dual simplex restarts from the last basis,
+    this model is rebuilt from scratch each round: a member brings rows (its 2K
+    stress rows) as well as columns, and the interior point method used here has
+    no warm start to keep.
+    """
 
     def __init__(self, data: _Data, exact: bool):
         self.data = data
