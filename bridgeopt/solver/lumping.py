@@ -2,7 +2,7 @@
 
 A point load acts on the node at its point; a uniform line load is shared
 between the nodes on its line with linear (hat) shape functions
-(:func:`line_load_shares`), so the lumped loads have the load's resultant and
+(:func:`interval_shares`), so the lumped loads have the load's resultant and
 moment (common practice of the finite element method); a support restrains the
 equilibrium rows of its node, and every node on a mirror line gets a free
 horizontal reaction.  :func:`lump_loads` and :func:`restraint_rows` take the
@@ -19,16 +19,47 @@ from bridgeopt.errors import InputError
 from bridgeopt.model.problem import Problem
 from bridgeopt.solver.ground import Grid
 
-__all__ = ["line_load_shares", "lump_loads", "nodal_loads", "restraint_rows", "restrained_rows"]
+__all__ = ["interval_shares", "line_load_shares", "lump_loads", "nodal_loads", "restraint_rows", "restrained_rows"]
+
+
+def interval_shares(x: np.ndarray, start: float | None = None,
+                    end: float | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """Shares of a unit uniform line load on [start, end] sent to each interval's two ends. [m]
+
+    The one lumping rule of line loads: the load on the part [lo, hi] of the
+    interval [x0, x1] under it goes to its ends by linear (hat) shape functions,
+    ``(x1 (hi - lo) - (hi^2 - lo^2) / 2) / (x1 - x0)`` to x0 and the rest to x1,
+    so the shares have the load's resultant and moment.
+
+    Parameters
+    ----------
+    x : (p,) float array
+        Sorted positions along the line of the nodes on it, covering the load. [m]
+    start, end : float, optional
+        Ends of the load (default: the first and last node). [m]
+
+    Returns
+    -------
+    share0, share1 : (p - 1,) float arrays
+        Load sent to the left and the right end of each interval. [m]
+    """
+    x = np.asarray(x, dtype=float)
+    xs = x[0] if start is None else start
+    xe = x[-1] if end is None else end
+    x0, x1 = x[:-1], x[1:]
+    lo, hi = np.maximum(x0, xs), np.minimum(x1, xe)
+    under = hi > lo
+    with np.errstate(invalid="ignore", divide="ignore"):
+        share0 = np.where(under, (x1 * (hi - lo) - 0.5 * (hi * hi - lo * lo)) / (x1 - x0), 0.0)
+    share1 = np.where(under, (hi - lo) - share0, 0.0)
+    return share0, share1
 
 
 def line_load_shares(x: np.ndarray, start: float | None = None,
                      end: float | None = None) -> np.ndarray:
-    """Share of a unit uniform line load on [start, end] taken by nodes at ``x``. [m]
+    """Share of a unit uniform line load on [start, end] taken by each node at ``x``. [m]
 
-    The one lumping rule of line loads: linear (hat) shape functions between
-    neighbouring nodes, so the shares have the load's resultant and moment; an
-    interval wholly under the load sends half of it to either end.
+    The sums of :func:`interval_shares` at each node.
 
     Parameters
     ----------
@@ -37,19 +68,10 @@ def line_load_shares(x: np.ndarray, start: float | None = None,
     start, end : float, optional
         Ends of the load (default: the first and last node). [m]
     """
-    x = np.asarray(x, dtype=float)
-    xs = x[0] if start is None else start
-    xe = x[-1] if end is None else end
-    x0, x1 = x[:-1], x[1:]
-    lo, hi = np.maximum(x0, xs), np.minimum(x1, xe)
-    h = x1 - x0
-    with np.errstate(invalid="ignore", divide="ignore"):
-        part = (x1 * (hi - lo) - 0.5 * (hi * hi - lo * lo)) / h
-    share0 = np.where((lo == x0) & (hi == x1), 0.5 * h, np.where(hi > lo, part, 0.0))
-    share1 = np.where(hi > lo, (hi - lo) - share0, 0.0)
-    share = np.zeros(len(x))
-    share[:-1] += share0
+    share0, share1 = interval_shares(x, start, end)
+    share = np.zeros(len(share0) + 1)
     share[1:] += share1
+    share[:-1] += share0
     return share
 
 
@@ -74,7 +96,9 @@ def lump_loads(problem: Problem, n: int, node_of, line_nodes) -> np.ndarray:
         f[node_of(load.at, f"load[{i}].at")] += load.force
     for i, q in enumerate(problem.line_loads):
         on, x = line_nodes(i, q)
-        f[on, 1] -= q.intensity * line_load_shares(x, q.start[0], q.end[0])
+        share0, share1 = interval_shares(x, q.start[0], q.end[0])
+        f[on[1:], 1] -= q.intensity * share1   # from the interval on the left, then
+        f[on[:-1], 1] -= q.intensity * share0  # from the one on the right
     return f
 
 
@@ -82,7 +106,7 @@ def nodal_loads(problem: Problem, grid: Grid) -> np.ndarray:
     """Applied loads lumped at grid nodes, (n, 2). [N]
 
     A line load is shared between the nodes on its line with linear (hat)
-    shape functions (:func:`line_load_shares`), so the lumped loads have the
+    shape functions (:func:`interval_shares`), so the lumped loads have the
     same resultant and moment; its ends may lie between nodes.
 
     Parameters
