@@ -131,12 +131,9 @@ def volume_gradient(problem: Problem, data: LPData, sol: LPSolution) -> np.ndarr
 
     Parameters
     ----------
-    problem : Problem
-        The frame's problem (line loads, scales).
-    data : LPData
-        The dimensionless LP at the current nodes.
-    sol : LPSolution
-        Its optimum (forces and duals).
+    problem, data, sol
+        Problem, dimensionless LP and its optimum (forces and duals), as
+        :func:`linearise`.
     """
     gc, G, R = linearise(problem, data, sol)
     u = sol.duals

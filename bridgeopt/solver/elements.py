@@ -224,11 +224,8 @@ def sag(p, q, k: float, sense: str) -> float:
 
     Parameters
     ----------
-    p, q : (2,) float arrays
-        End points, P left of Q. [L]
-    k : float
-        rho*g/sigma, >= 0. [1/L]
-    sense : {"tension", "compression"}
+    p, q, k, sense
+        End points [L], rho*g/sigma [1/L] and sense, as :func:`centreline`.
     """
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)

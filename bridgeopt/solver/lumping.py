@@ -63,10 +63,9 @@ def line_load_shares(x: np.ndarray, start: float | None = None,
 
     Parameters
     ----------
-    x : (p,) float array
-        Sorted positions along the line of the nodes on it, covering the load. [m]
-    start, end : float, optional
-        Ends of the load (default: the first and last node). [m]
+    x, start, end
+        Node positions along the line and the load's ends [m], as
+        :func:`interval_shares`.
     """
     share0, share1 = interval_shares(x, start, end)
     share = np.zeros(len(share0) + 1)
