@@ -36,159 +36,32 @@ References
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass
 
 import numpy as np
 from scipy import sparse
-from scipy.optimize import linprog
 
-from bridgeopt.solver.design import Design
-from bridgeopt.solver.elements import SENSES
 from bridgeopt.errors import InputError, SolveError
-from bridgeopt.solver.frame import Frame, _lp_data, frame_from_design, position_tolerance, size_frame
-from bridgeopt.model.plane import points_in_polygon
-from bridgeopt.solver.ground import Grid, members_clear_of_zones
-from bridgeopt.solver.layout import scales
-from bridgeopt.solver.lp import column_entries, solve_lp
+from bridgeopt.geometry.moves import DECK_SLIDE, NodeMoves, deck_homes, default_moves, keeps_rules
 from bridgeopt.geometry.sensitivity import linearise
-from bridgeopt.geometry.topology import NodeRoles, groups, node_roles, simplify
+from bridgeopt.geometry.topology import node_roles, simplify
+from bridgeopt.solver.design import Design
+from bridgeopt.solver.frame import (Frame, frame_from_design, frame_lp_data, position_tolerance,
+                                    size_frame)
+from bridgeopt.solver.ground import Grid, members_clear_of_zones
+from bridgeopt.solver.highs import (DEFAULT_TOL, ColumnSet, solve_columns, stack_columns,
+                                    unit_columns)
+from bridgeopt.solver.layout import scales
+from bridgeopt.solver.lp import lp_columns, solve_lp
 
 __all__ = ["NodeMoves", "default_moves", "optimize_geometry"]
 
 
-#: Smallest horizontal reach of a non-vertical member during node moves, as a
-#: fraction of the reference length (the element formulas are singular at 0).
-MIN_REACH = 1e-4
-#: Largest slide of a loaded deck node along its line, in grid steps.
-DECK_SLIDE = 0.25
 #: Members within this many grid steps of vertical are made vertical between rounds
 #: (their ends then move together), since the element formulas are singular as a
 #: curved member turns vertical.
 SNAP = 0.02
 #: Stop rule for the node moves: relative volume gain of a kept step.
 FTOL = 1e-7
-
-
-@dataclass(frozen=True)
-class NodeMoves:
-    """Free geometry as a linear map of parameters.
-
-    ``nodes = base + (T @ p).reshape(n, 2)`` with ``lower <= p <= upper``;
-    row ``2*i`` of ``T`` moves x of node i and row ``2*i + 1`` its z.
-
-    Parameters
-    ----------
-    T : (2n, k) array
-        How each parameter moves the node coordinates. [-]
-    lower, upper : (k,) arrays
-        Bounds of the parameters (0 is the starting geometry). [m]
-    names : tuple of str
-        A label per parameter, for reports.
-    """
-
-    T: np.ndarray
-    lower: np.ndarray
-    upper: np.ndarray
-    names: tuple[str, ...] = ()
-
-    def __post_init__(self) -> None:
-        T = np.asarray(self.T, dtype=float)
-        if T.ndim != 2:
-            raise InputError("moves.T", T.shape, "a (2 * nodes, parameters) matrix")
-        lo = np.broadcast_to(np.asarray(self.lower, dtype=float), (T.shape[1],)).copy()
-        hi = np.broadcast_to(np.asarray(self.upper, dtype=float), (T.shape[1],)).copy()
-        if np.any(lo > 0) or np.any(hi < 0):
-            raise InputError("moves.lower", list(lo), "bounds with lower <= 0 <= upper "
-                             "(the start geometry must be allowed)")
-        names = tuple(self.names) or tuple(f"p{i}" for i in range(T.shape[1]))
-        object.__setattr__(self, "T", T)
-        object.__setattr__(self, "lower", lo)
-        object.__setattr__(self, "upper", hi)
-        object.__setattr__(self, "names", names)
-
-    @property
-    def size(self) -> int:
-        return self.T.shape[1]
-
-
-def deck_homes(frame: Frame, roles: NodeRoles | None = None) -> np.ndarray:
-    """x of the frame's nodes on line loads: where deck nodes may slide from. [m]"""
-    roles = roles or node_roles(frame)
-    return np.sort(np.asarray(frame.nodes)[roles.z_fixed, 0])
-
-
-def default_moves(frame: Frame, roles: NodeRoles | None = None, *,
-                  deck_slide: float = DECK_SLIDE, homes: np.ndarray | None = None) -> NodeMoves:
-    """The moves allowed by the rules in the module docstring, bounded by the domain's box.
-
-    ``deck_slide`` is the largest slide of a loaded deck node, in grid steps, from
-    the nearest of ``homes`` (default: :func:`deck_homes` of this frame). [-, m]
-    """
-    roles = roles or node_roles(frame)
-    homes = deck_homes(frame, roles) if homes is None else np.sort(np.asarray(homes, float))
-    n = len(frame.nodes)
-    x0, x1, z0, z1 = frame.problem.domain.bounds
-    tol = position_tolerance(frame.problem)
-    a, b = frame.start, frame.end
-    vert = np.abs(frame.nodes[b, 0] - frame.nodes[a, 0]) <= tol
-    # x: nodes joined by vertical members move together
-    xgroup = groups(n, np.column_stack([a[vert], b[vert]]))
-    cols, lower, upper, names = [], [], [], []
-    for g in np.unique(xgroup):
-        members_ = np.nonzero(xgroup == g)[0]
-        if np.any(roles.x_fixed[members_]):
-            continue
-        col = np.zeros(2 * n)
-        col[2 * members_] = 1.0
-        x = frame.nodes[members_[0], 0]
-        cols.append(col)
-        # a deck node slides at most deck_slide grid steps, so that the line load is
-        # never lumped over much longer intervals than the problem's spacing
-        lo, hi = x0 - x, x1 - x
-        if np.any(roles.z_fixed[members_]) and len(homes):
-            home = homes[np.argmin(np.abs(homes - x))]
-            reach = deck_slide * frame.problem.spacing
-            lo, hi = max(lo, home - reach - x), min(hi, home + reach - x)
-        lower.append(lo)
-        upper.append(hi)
-        names.append(f"x of node {members_[0]}" + (f" (+{len(members_) - 1} tied)"
-                                                   if len(members_) > 1 else ""))
-    for i in np.nonzero(~roles.z_fixed)[0]:
-        col = np.zeros(2 * n)
-        col[2 * i + 1] = 1.0
-        cols.append(col)
-        lower.append(z0 - frame.nodes[i, 1])
-        upper.append(z1 - frame.nodes[i, 1])
-        names.append(f"z of node {i}")
-    T = np.column_stack(cols) if cols else np.zeros((2 * n, 0))
-    return NodeMoves(T=T, lower=np.minimum(lower, 0.0), upper=np.maximum(upper, 0.0),
-                     names=tuple(names))
-
-
-def _allowed(frame: Frame, nodes: np.ndarray, vertical: np.ndarray, ref_len: float) -> bool:
-    """True when ``nodes`` keep to the rules (left/right order, reach, domain, zones)."""
-    a, b = frame.start, frame.end
-    lx = nodes[b, 0] - nodes[a, 0]
-    if np.any(lx[~vertical] < MIN_REACH * ref_len):
-        return False
-    x0, x1, z0, z1 = frame.problem.domain.bounds
-    slack = 1e-9 * ref_len
-    if (np.any(nodes[:, 0] < x0 - slack) or np.any(nodes[:, 0] > x1 + slack)
-            or np.any(nodes[:, 1] < z0 - slack) or np.any(nodes[:, 1] > z1 + slack)):
-        return False
-    dom = frame.problem.domain
-    if not dom.is_box:
-        tol = 1e-7 * ref_len
-        if not points_in_polygon(nodes, dom.outline, boundary=True, tol=tol).all():
-            return False
-        for zone in dom.excluded:
-            if points_in_polygon(nodes, zone, boundary=False, tol=tol).any():
-                return False
-        grid = Grid(xz=nodes, ij=np.zeros((len(nodes), 2), dtype=np.int64),
-                    step=(ref_len, ref_len), origin=(0.0, 0.0))
-        if not members_clear_of_zones(frame.problem, grid, a, b).all():
-            return False
-    return True
 
 
 class _Geometry:
@@ -208,9 +81,9 @@ class _Geometry:
     def solve(self, p):
         """(LP data, LP optimum) at ``p``, or None where the geometry is refused or fails."""
         nodes = self.nodes(p)
-        if not _allowed(self.frame, nodes, self.vertical, self.ref_len):
+        if not keeps_rules(self.frame, nodes, self.vertical, self.ref_len):
             return None
-        data, _, _ = _lp_data(self.frame.moved(nodes))
+        data, _, _ = frame_lp_data(self.frame.moved(nodes))
         try:
             return data, solve_lp(data, member_adding=False)
         except SolveError:
@@ -226,28 +99,18 @@ def _slp_step(problem, data, sol, T: np.ndarray, lower, upper):
     """
     gc, G, R = linearise(problem, data, sol)
     n2 = 2 * len(data.xz)
-    blocks, costs = [], []
-    for s, sense in enumerate(SENSES):
-        pair = np.arange(len(data.a))
-        if data.allowed is not None:
-            pair = pair[data.allowed[:, s]]
-        cost, rows, vals = column_entries(data, pair, sense)
-        ok = np.isfinite(cost)
-        cols = np.repeat(np.arange(ok.sum()), 4)
-        blocks.append(sparse.csc_matrix((vals[ok].ravel(), (rows[ok].ravel(), cols)),
-                                        shape=(n2, ok.sum())))
-        costs.append(cost[ok])
-    nfix = len(data.fixed)
-    blocks.append(sparse.csc_matrix((np.ones(nfix), (data.fixed, np.arange(nfix))),
-                                    shape=(n2, nfix)))
-    blocks.append(sparse.csc_matrix((G - R) @ T))
-    A = sparse.hstack(blocks, format="csc")
-    c = np.concatenate(costs + [np.zeros(nfix), gc @ T])
-    nq = sum(len(x) for x in costs)
-    bounds = ([(0, None)] * nq + [(None, None)] * nfix + list(zip(lower, upper)))
+    pair = np.arange(len(data.a))
+    members = [lp_columns(data, pair, s)[1] for s in range(2)]
+    moves = sparse.csc_matrix(T)
+    step = ColumnSet(cost=np.asarray(moves.T @ gc).ravel(), lower=np.asarray(lower, dtype=float),
+                     upper=np.asarray(upper, dtype=float),
+                     matrix=sparse.csc_matrix((G - R) @ moves))
     rhs = -np.asarray(data.load, dtype=float)
-    res = linprog(c, A_eq=A, b_eq=rhs, bounds=bounds, method="highs")
-    if res.status != 0:
+    # HiGHS's default tolerance (the step's LP always had it): the step is only a proposal,
+    # kept or refused by the exact LP re-solved at the moved nodes
+    res = solve_columns(stack_columns(*members, unit_columns(data.fixed, n2), step), rhs, rhs,
+                        tolerance=DEFAULT_TOL)
+    if res.status != "optimal":
         return None
     return res.x[-T.shape[1]:]
 
@@ -439,7 +302,7 @@ def _relayout(frame: Frame) -> Frame:
                     step=(1.0, 1.0), origin=(0.0, 0.0))
         keep = members_clear_of_zones(frame.problem, grid, a, b)
         a, b = a[keep], b[keep]
-    data, _, _ = _lp_data(Frame(problem=frame.problem, nodes=frame.nodes, start=a, end=b))
+    data, _, _ = frame_lp_data(Frame(problem=frame.problem, nodes=frame.nodes, start=a, end=b))
     try:
         sol = solve_lp(data, member_adding=False)
     except SolveError:  # pragma: no cover - contains the frame's own members

@@ -11,8 +11,8 @@ an optimum q0,
   functions, so each share is half the distance between its neighbours).
 
 Each member's cost and end-force factors depend only on its reach lx and rise
-dz; they are differentiated by central differences of the closed forms in
-:mod:`bridgeopt.solver.elements`.  By the envelope theorem of linear programming the
+dz; they are differentiated by central differences of the same coefficient
+function the LP is built from (:func:`~bridgeopt.solver.elements.element_coefficients`).  By the envelope theorem of linear programming the
 gradient of the optimum volume is ``gc - G^T u + R^T u`` with u the equality
 duals (:func:`volume_gradient`); the sequential linear programs of
 :mod:`bridgeopt.geometry.optimize` use ``G`` and ``R`` directly.
@@ -28,37 +28,17 @@ from __future__ import annotations
 import numpy as np
 from scipy import sparse
 
-from bridgeopt.solver.elements import SENSES, curved_coefficients, vertical_coefficients
-from bridgeopt.solver.frame import position_tolerance
+from bridgeopt.model.problem import Problem
+from bridgeopt.solver.elements import SENSES, element_coefficients
+from bridgeopt.solver.frame import nodes_on_line_load, position_tolerance
+from bridgeopt.solver.highs import node_rows
 from bridgeopt.solver.layout import scales
 from bridgeopt.solver.lp import LPData, LPSolution
-from bridgeopt.model.problem import Problem
 
-__all__ = ["coefficients", "linearise", "volume_gradient"]
+__all__ = ["linearise", "volume_gradient"]
 
 #: Relative step of the central differences.
 STEP = 1e-6
-
-
-def coefficients(lx, dz, k: float, sense: str, vertical) -> tuple[np.ndarray, np.ndarray]:
-    """Cost (m,) and end-force factors (m, 4) of members with reach ``lx`` and rise ``dz``.
-
-    ``vertical`` members use the uniform-strength bar (their ``lx`` is ignored).
-    """
-    lx, dz = np.asarray(lx, dtype=float), np.asarray(dz, dtype=float)
-    cost = np.empty(len(lx))
-    vals = np.zeros((len(lx), 4))
-    curved = ~vertical
-    if curved.any():
-        c, pxf, pzf, qxf, qzf = curved_coefficients(lx[curved], dz[curved], k, sense)
-        cost[curved] = c
-        vals[curved] = np.column_stack([pxf, pzf, qxf, qzf])
-    if vertical.any():
-        c, pzf, qzf = vertical_coefficients(dz[vertical], k, sense)
-        cost[vertical] = c
-        vals[vertical, 1] = pzf
-        vals[vertical, 3] = qzf
-    return cost, vals
 
 
 def _member_derivatives(data: LPData, pair, sense: str):
@@ -71,12 +51,12 @@ def _member_derivatives(data: LPData, pair, sense: str):
     hx = STEP * np.maximum(np.abs(lx), 1e-3)
     hz = STEP * np.maximum(np.abs(dz), 1e-3)
     lx_c = np.where(vert, 1.0, lx)
-    c1, v1 = coefficients(lx_c + hx, dz, k, sense, vert)
-    c0, v0 = coefficients(lx_c - hx, dz, k, sense, vert)
+    c1, v1 = element_coefficients(lx_c + hx, dz, k, sense, vert)
+    c0, v0 = element_coefficients(lx_c - hx, dz, k, sense, vert)
     dc_lx = np.where(vert, 0.0, (c1 - c0) / (2 * hx))
     dv_lx = np.where(vert[:, None], 0.0, (v1 - v0) / (2 * hx)[:, None])
-    c1, v1 = coefficients(lx_c, dz + hz, k, sense, vert)
-    c0, v0 = coefficients(lx_c, dz - hz, k, sense, vert)
+    c1, v1 = element_coefficients(lx_c, dz + hz, k, sense, vert)
+    c0, v0 = element_coefficients(lx_c, dz - hz, k, sense, vert)
     dc_dz = (c1 - c0) / (2 * hz)
     dv_dz = (v1 - v0) / (2 * hz)[:, None]
     return a, b, dc_lx, dc_dz, dv_lx, dv_dz
@@ -90,10 +70,7 @@ def _load_derivatives(problem: Problem, data: LPData) -> sparse.csr_matrix:
     tol = position_tolerance(problem)
     rows, cols, vals = [], [], []
     for q in problem.line_loads:
-        (xs, z), (xe, _) = q.start, q.end
-        on = np.nonzero((np.abs(xz[:, 1] - z) <= tol) & (xz[:, 0] >= xs - tol)
-                        & (xz[:, 0] <= xe + tol))[0]
-        on = on[np.argsort(xz[on, 0], kind="stable")]
+        on, _ = nodes_on_line_load(xz, q, tol)
         scale = q.intensity * ref_len / ref_force   # rhs_z = +w share / P
         last = len(on) - 1
         for i, node in enumerate(on):
@@ -110,7 +87,17 @@ def _load_derivatives(problem: Problem, data: LPData) -> sparse.csr_matrix:
 
 
 def linearise(problem: Problem, data: LPData, sol: LPSolution):
-    """``gc``, ``G`` and ``R`` of the module docstring at the optimum ``sol``."""
+    """``gc``, ``G`` and ``R`` of the module docstring at the optimum ``sol``.
+
+    Parameters
+    ----------
+    problem : Problem
+        The frame's problem (line loads, scales).
+    data : LPData
+        The dimensionless LP at the current nodes.
+    sol : LPSolution
+        Its optimum.
+    """
     n2 = 2 * len(data.xz)
     gc = np.zeros(n2)
     g_rows, g_cols, g_vals = [], [], []
@@ -122,7 +109,7 @@ def linearise(problem: Problem, data: LPData, sol: LPSolution):
         a, b, dc_lx, dc_dz, dv_lx, dv_dz = _member_derivatives(data, sol.pair[sel], sense)
         cs = data.cost_scale[sense]
         # coordinates (xa, za, xb, zb): d/dxa = -d/dlx, d/dxb = +d/dlx, likewise z with dz
-        coords = np.column_stack([2 * a, 2 * a + 1, 2 * b, 2 * b + 1])
+        coords = node_rows(a, b)
         dcoord_c = np.column_stack([-dc_lx, -dc_dz, dc_lx, dc_dz]) * cs
         np.add.at(gc, coords, q[:, None] * dcoord_c)
         dcoord_v = np.stack([-dv_lx, -dv_dz, dv_lx, dv_dz], axis=2)   # (m, row, coord)
@@ -141,6 +128,12 @@ def volume_gradient(problem: Problem, data: LPData, sol: LPSolution) -> np.ndarr
     """dV*/dX of the dimensionless LP optimum, (2n,), x and z interleaved.
 
     Envelope theorem: gc - G^T u + R^T u, with u the equality-row duals.
+
+    Parameters
+    ----------
+    problem, data, sol
+        Problem, dimensionless LP and its optimum (forces and duals), as
+        :func:`linearise`.
     """
     gc, G, R = linearise(problem, data, sol)
     u = sol.duals

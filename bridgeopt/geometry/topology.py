@@ -43,7 +43,13 @@ class NodeRoles:
 
 
 def node_roles(frame: Frame) -> NodeRoles:
-    """Roles of the nodes of ``frame`` from its problem (by position)."""
+    """Roles of the nodes of ``frame`` from its problem (by position).
+
+    Parameters
+    ----------
+    frame : Frame
+        Nodes [m] and the problem whose supports, loads and mirror lines give the roles.
+    """
     problem, nodes = frame.problem, np.asarray(frame.nodes)
     tol = position_tolerance(problem)
     n = len(nodes)
@@ -69,7 +75,15 @@ def node_roles(frame: Frame) -> NodeRoles:
 
 
 def groups(n: int, pairs: np.ndarray) -> np.ndarray:
-    """Label of each of ``n`` nodes; nodes linked through ``pairs`` (m, 2) share one."""
+    """Label of each of ``n`` nodes; nodes linked through ``pairs`` (m, 2) share one.
+
+    Parameters
+    ----------
+    n : int
+        Number of nodes. [-]
+    pairs : (m, 2) int array
+        Linked node pairs. [-]
+    """
     pairs = np.asarray(pairs, dtype=np.int64).reshape(-1, 2)
     graph = sparse.coo_matrix((np.ones(len(pairs)), (pairs[:, 0], pairs[:, 1])), shape=(n, n))
     return connected_components(graph, directed=False)[1]

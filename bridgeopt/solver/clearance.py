@@ -35,6 +35,15 @@ def enters_zones(curve: np.ndarray, zones, *, tol: float) -> bool:
 
     ``tol`` is a length tolerance: points within it of a zone's edge are on the
     edge (not inside). [m]
+
+    Parameters
+    ----------
+    curve : (k, 2) float array
+        Points of the polyline. [m]
+    zones : sequence of (p, 2) arrays
+        Polygons of the excluded zones. [m]
+    tol : float
+        Length tolerance. [m]
     """
     curve = np.asarray(curve, dtype=float)
     p, q = curve[:-1], curve[1:]
@@ -58,6 +67,15 @@ def curves_entering_zones(problem, start: np.ndarray, end: np.ndarray, senses) -
     already checked when the candidates were generated.  Only members whose
     chord's bounding box, widened by their sag, meets a zone's bounding box are
     traced.
+
+    Parameters
+    ----------
+    problem : Problem
+        Materials (for k = rho g / sigma) and the domain's excluded zones.
+    start, end : (m, 2) float arrays
+        Member end points. [m]
+    senses : (m,) str array
+        ``"tension"`` or ``"compression"`` per member.
     """
     zones = problem.domain.excluded
     out = np.zeros(len(start), dtype=bool)

@@ -77,6 +77,17 @@ def equilibrium_residual(nodes, members: Members, loads, reactions) -> np.ndarra
 
     Sums the end forces of the members, the applied loads and the reactions,
     independently of the LP that produced them.
+
+    Parameters
+    ----------
+    nodes : (n, 2) float array
+        Node coordinates. [m]
+    members : Members
+        Member ends and end forces. [N]
+    loads : (n, 2) float array
+        Applied nodal loads. [N]
+    reactions : (r, 3) float array
+        Rows (node, Rx, Rz). [-, N, N]
     """
     r = np.array(loads, dtype=float).reshape(-1, 2).copy()
     np.add.at(r, members.start, members.force_start)

@@ -32,7 +32,7 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = ["PHI_LIMIT", "curved_coefficients", "vertical_coefficients",
-           "centreline", "sag", "SENSES"]
+           "element_coefficients", "bar_factors", "centreline", "sag", "SENSES"]
 
 SENSES = ("tension", "compression")
 
@@ -110,6 +110,66 @@ def vertical_coefficients(h, k: float, sense: str):
     raise ValueError(f"sense must be 'tension' or 'compression', not {sense!r}")
 
 
+def element_coefficients(lx, dz, k: float, sense: str, vertical) -> tuple[np.ndarray, np.ndarray]:
+    """Cost (m,) and end-force factors (m, 4) of elements with reach ``lx`` and rise ``dz``.
+
+    The one statement of an element's LP coefficients: curved elements (and
+    straight bars, k = 0) by :func:`curved_coefficients`, ``vertical`` ones by the
+    uniform-strength bar of :func:`vertical_coefficients` (their ``lx`` is
+    ignored).
+
+    Parameters
+    ----------
+    lx : (m,) array_like
+        Horizontal projection xQ - xP (> 0 unless vertical). [L]
+    dz : (m,) array_like
+        Rise zQ - zP (> 0 for a vertical element). [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+    vertical : (m,) bool array
+        Which elements are vertical.
+
+    Returns
+    -------
+    cost : (m,) ndarray
+        sigma*volume per unit H (or F); nan where no element can span. [L]
+    vals : (m, 4) ndarray
+        End-force factors (P x, P z, Q x, Q z); vertical elements have zero x
+        factors. [-]
+    """
+    lx, dz = np.asarray(lx, dtype=float), np.asarray(dz, dtype=float)
+    vertical = np.asarray(vertical, dtype=bool)
+    cost = np.empty(len(lx))
+    vals = np.zeros((len(lx), 4))
+    curved = ~vertical
+    if curved.any():
+        c, pxf, pzf, qxf, qzf = curved_coefficients(lx[curved], dz[curved], k, sense)
+        cost[curved] = c
+        vals[curved] = np.column_stack([pxf, pzf, qxf, qzf])
+    if vertical.any():
+        c, pzf, qzf = vertical_coefficients(dz[vertical], k, sense)
+        cost[vertical] = c
+        vals[vertical, 1] = pzf
+        vals[vertical, 3] = qzf
+    return cost, vals
+
+
+def bar_factors(unit: np.ndarray) -> np.ndarray:
+    """End-force factors (P x, P z, Q x, Q z) of straight bars of axial force q, (m, 4).
+
+    A bar from P to Q with tension q pulls P by q n and Q by -q n (n the unit
+    vector from P to Q).
+
+    Parameters
+    ----------
+    unit : (m, 2) float array
+        Unit vectors from P to Q. [-]
+    """
+    unit = np.asarray(unit, dtype=float)
+    return np.column_stack([unit[:, 0], unit[:, 1], -unit[:, 0], -unit[:, 1]])
+
+
 def _end_slope(p, q, k: float, sense: str) -> float:
     """tan of the centreline's slope at P."""
     lx, dz = q[0] - p[0], q[1] - p[1]
@@ -133,6 +193,16 @@ def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
 
     Cable: z(x) = zP + ln(cos tP / cos(tP + k x)) / k; arch: the mirror image
     with the curvature reversed (tP here the end angle at P).
+
+    Parameters
+    ----------
+    p, q : (2,) float arrays
+        End points, P left of Q. [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+    n : int
+        Number of points on a curved centreline. [-]
     """
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)
@@ -151,6 +221,11 @@ def sag(p, q, k: float, sense: str) -> float:
 
     Zero for straight and vertical elements.  At the point of largest sag the
     centreline's slope equals the chord's.
+
+    Parameters
+    ----------
+    p, q, k, sense
+        End points [L], rho*g/sigma [1/L] and sense, as :func:`centreline`.
     """
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)

@@ -25,18 +25,25 @@ from bridgeopt.solver.design import Design
 from bridgeopt.solver.elements import PHI_LIMIT, SENSES
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.ground import Grid
-from bridgeopt.solver.layout import design_from_lp, scales
+from bridgeopt.solver.layout import design_from_lp, scaled_lp_data, scales
+from bridgeopt.solver.lumping import lump_loads, restraint_rows
 from bridgeopt.solver.lp import LPData, solve_lp
 from bridgeopt.model.problem import Problem
 
 __all__ = ["Frame", "size_frame", "frame_loads", "frame_restraints", "frame_from_design",
-           "position_tolerance"]
+           "position_tolerance", "frame_lp_data", "nodes_on_line_load"]
 
 _SENSE_CHOICES = ("tension", "compression", "either")
 
 
 def position_tolerance(problem: Problem) -> float:
-    """Distance within which two points count as the same node. [m]"""
+    """Distance within which two points count as the same node. [m]
+
+    Parameters
+    ----------
+    problem : Problem
+        Its domain gives the reference length.
+    """
     return 1e-6 * scales(problem)[0]
 
 
@@ -50,23 +57,34 @@ def _node_at(nodes: np.ndarray, point, tol: float, field: str) -> int:
     return i
 
 
-def line_load_shares(x: np.ndarray) -> np.ndarray:
-    """Share of a unit uniform line load taken by each node on it. [m]
+def nodes_on_line_load(nodes: np.ndarray, q, tol: float) -> tuple[np.ndarray, np.ndarray]:
+    """The nodes on line load ``q``, sorted along it, and their x clipped to its ends.
 
-    ``x`` are the positions along the line of the nodes that lie on it, sorted,
-    the first and last at the load's ends; each interval between
-    neighbours sends half its load to either end (linear shape functions), so
-    the shares have the load's resultant and moment.
+    Parameters
+    ----------
+    nodes : (n, 2) float array
+        Node coordinates. [m]
+    q : LineLoad
+        A horizontal line load.
+    tol : float
+        Distance within which a node lies on the load. [m]
     """
-    dx = np.diff(x)
-    share = np.zeros(len(x))
-    share[:-1] += 0.5 * dx
-    share[1:] += 0.5 * dx
-    return share
+    (xs, z), (xe, _) = q.start, q.end
+    on = np.nonzero((np.abs(nodes[:, 1] - z) <= tol) & (nodes[:, 0] >= xs - tol)
+                    & (nodes[:, 0] <= xe + tol))[0]
+    on = on[np.argsort(nodes[on, 0], kind="stable")]
+    return on, np.clip(nodes[on, 0], xs, xe)
 
 
 def frame_loads(problem: Problem, nodes: np.ndarray) -> np.ndarray:
     """Applied loads lumped at ``nodes``, (n, 2). [N]
+
+    Parameters
+    ----------
+    problem : Problem
+        Its point and line loads (a line load's two ends must be nodes).
+    nodes : (n, 2) float array
+        Node coordinates. [m]
 
     Raises
     ------
@@ -75,36 +93,31 @@ def frame_loads(problem: Problem, nodes: np.ndarray) -> np.ndarray:
     """
     nodes = np.asarray(nodes, dtype=float)
     tol = position_tolerance(problem)
-    f = np.zeros((len(nodes), 2))
-    for i, load in enumerate(problem.loads):
-        f[_node_at(nodes, load.at, tol, f"load[{i}].at")] += load.force
-    for i, q in enumerate(problem.line_loads):
-        (xs, z), (xe, _) = q.start, q.end
-        _node_at(nodes, q.start, tol, f"line_load[{i}].from")
-        _node_at(nodes, q.end, tol, f"line_load[{i}].to")
-        on = np.nonzero((np.abs(nodes[:, 1] - z) <= tol) & (nodes[:, 0] >= xs - tol)
-                        & (nodes[:, 0] <= xe + tol))[0]
-        on = on[np.argsort(nodes[on, 0], kind="stable")]
-        x = np.clip(nodes[on, 0], xs, xe)
-        f[on, 1] -= q.intensity * line_load_shares(x)
-    return f
+
+    def node_of(point, field):
+        return _node_at(nodes, point, tol, field)
+
+    def line_nodes(i, q):
+        node_of(q.start, f"line_load[{i}].from")
+        node_of(q.end, f"line_load[{i}].to")
+        return nodes_on_line_load(nodes, q, tol)
+
+    return lump_loads(problem, len(nodes), node_of, line_nodes)
 
 
 def frame_restraints(problem: Problem, nodes: np.ndarray) -> np.ndarray:
-    """Equilibrium rows (2*node + direction) that carry a free reaction."""
+    """Equilibrium rows (2*node + direction) that carry a free reaction.
+
+    Parameters
+    ----------
+    problem : Problem
+        Its supports (at nodes) and mirror lines.
+    nodes : (n, 2) float array
+        Node coordinates. [m]
+    """
     nodes = np.asarray(nodes, dtype=float)
     tol = position_tolerance(problem)
-    rows = set()
-    for i, s in enumerate(problem.supports):
-        node = _node_at(nodes, s.at, tol, f"support[{i}].at")
-        if "x" in s.fix:
-            rows.add(2 * node)
-        if "z" in s.fix:
-            rows.add(2 * node + 1)
-    for m in problem.mirror_lines:
-        for node in np.nonzero(np.abs(nodes[:, 0] - m) <= tol)[0]:
-            rows.add(2 * int(node))
-    return np.array(sorted(rows), dtype=np.int64)
+    return restraint_rows(problem, nodes, lambda p, field: _node_at(nodes, p, tol, field), tol)
 
 
 @dataclass(frozen=True)
@@ -170,28 +183,47 @@ class Frame:
         return len(self.start)
 
     def moved(self, nodes: np.ndarray) -> "Frame":
-        """The same members on other node coordinates. [m]"""
+        """The same members on other node coordinates.
+
+        Parameters
+        ----------
+        nodes : (n, 2) float array
+            The new node coordinates. [m]
+        """
         return Frame(problem=self.problem, nodes=nodes, start=self.start, end=self.end,
                      senses=self.senses, group=self.group)
 
 
-def _lp_data(frame: Frame) -> tuple[LPData, np.ndarray, tuple[float, float, float]]:
+def frame_lp_data(frame: Frame) -> tuple[LPData, np.ndarray, tuple[float, float, float]]:
+    """The dimensionless LP over exactly the frame's members.
+
+    Parameters
+    ----------
+    frame : Frame
+        Nodes [m], members and their allowed senses.
+
+    Returns
+    -------
+    data : LPData
+    f : (n, 2) float array
+        Lumped nodal loads. [N]
+    refs : (float, float, float)
+        Reference length [m], force [N] and stress [Pa].
+    """
     problem = frame.problem
-    ref_len, ref_force, ref_sigma = scales(problem)
-    x0, _, z0, _ = problem.domain.bounds
+    refs = scales(problem)
     f = frame_loads(problem, frame.nodes)
-    xz = (frame.nodes - (x0, z0)) / ref_len
-    # a member whose ends share x within the tolerance is vertical: make it exactly so
     a, b = frame.start, frame.end
-    vert = np.abs(xz[b, 0] - xz[a, 0]) <= position_tolerance(problem) / ref_len
-    xz[b[vert], 0] = xz[a[vert], 0]
     allowed = np.column_stack([frame.senses != "compression", frame.senses != "tension"])
-    data = LPData(xz=xz, a=a.astype(np.int32), b=b.astype(np.int32),
-                  k={s: problem.k(s) * ref_len for s in SENSES},
-                  cost_scale={s: ref_sigma / problem.strength(s) for s in SENSES},
-                  load=(f / ref_force).ravel(), fixed=frame_restraints(problem, frame.nodes),
-                  reach=np.zeros(len(a), dtype=np.int64), allowed=allowed)
-    return data, f, (ref_len, ref_force, ref_sigma)
+    data = scaled_lp_data(problem, frame.nodes, a.astype(np.int32), b.astype(np.int32), f,
+                          frame_restraints(problem, frame.nodes),
+                          np.zeros(len(a), dtype=np.int64), allowed)
+    # a member whose ends share x within the tolerance is vertical: make it exactly so
+    # (data.xz is this call's own array)
+    xz = data.xz
+    vert = np.abs(xz[b, 0] - xz[a, 0]) <= position_tolerance(problem) / refs[0]
+    xz[b[vert], 0] = xz[a[vert], 0]
+    return data, f, refs
 
 
 def _check_reach(frame: Frame) -> None:
@@ -218,6 +250,11 @@ def _check_reach(frame: Frame) -> None:
 def size_frame(frame: Frame) -> Design:
     """Least-volume member forces of ``frame`` (one LP over exactly its members).
 
+    Parameters
+    ----------
+    frame : Frame
+        Nodes [m], members, their allowed senses and groups, and the problem.
+
     Returns
     -------
     Design
@@ -240,7 +277,7 @@ def size_frame(frame: Frame) -> Design:
     if len(frame) == 0:
         raise SolveError("infeasible", "the frame has no members to carry the loads")
     _check_reach(frame)
-    data, f, refs = _lp_data(frame)
+    data, f, refs = frame_lp_data(frame)
     try:
         sol = solve_lp(data, member_adding=False)
     except SolveError as err:
@@ -258,7 +295,15 @@ def size_frame(frame: Frame) -> Design:
 
 
 def frame_from_design(design: Design, *, senses: str = "either") -> Frame:
-    """The members of ``design`` as a frame (each member free to take ``senses``)."""
+    """The members of ``design`` as a frame (each member free to take ``senses``).
+
+    Parameters
+    ----------
+    design : Design
+        A solved design with its problem.
+    senses : {"either", "tension", "compression"}
+        The sense every member may take.
+    """
     m = design.members
     return Frame(problem=design.problem, nodes=np.array(design.nodes), start=np.array(m.start),
                  end=np.array(m.end), senses=np.full(len(m), senses),

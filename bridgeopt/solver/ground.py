@@ -50,7 +50,15 @@ class Grid:
         return len(self.xz)
 
     def node_at(self, point, field: str) -> int:
-        """Index of the node at ``point``; :class:`InputError` naming ``field`` if none."""
+        """Index of the node at ``point``; :class:`InputError` naming ``field`` if none.
+
+        Parameters
+        ----------
+        point : (2,) float array
+            Where the node should be. [m]
+        field : str
+            Input name for the error message.
+        """
         p = np.asarray(point, dtype=float)
         d = np.hypot(*(self.xz - p).T)
         i = int(np.argmin(d))
@@ -63,7 +71,13 @@ class Grid:
 
 
 def build_grid(problem: Problem) -> Grid:
-    """Lattice nodes inside ``problem.domain`` and outside its excluded zones."""
+    """Lattice nodes inside ``problem.domain`` and outside its excluded zones.
+
+    Parameters
+    ----------
+    problem : Problem
+        Its domain and spacing. [m]
+    """
     x0, x1, z0, z1 = problem.domain.bounds
     nx, nz = problem.grid_shape()
     sx, sz = (x1 - x0) / nx, (z1 - z0) / nz
@@ -82,7 +96,17 @@ def build_grid(problem: Problem) -> Grid:
 
 
 def members_clear_of_zones(problem: Problem, grid: Grid, a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Members that stay in the domain and out of every excluded zone."""
+    """Members that stay in the domain and out of every excluded zone.
+
+    Parameters
+    ----------
+    problem : Problem
+        Its domain outline and excluded zones. [m]
+    grid : Grid
+        Node coordinates. [m]
+    a, b : (m,) int arrays
+        Member end nodes. [-]
+    """
     p, q = grid.xz[a], grid.xz[b]
     ok = np.ones(len(a), dtype=bool)
     tol = 1e-7 * max(grid.step)
@@ -106,6 +130,13 @@ def candidate_pairs(problem: Problem, grid: Grid) -> tuple[np.ndarray, np.ndarra
     ``a`` is the left end (or the lower end of a vertical member).  Pairs with a
     third lattice node on the segment are skipped (gcd filter), and so are
     members leaving the domain or crossing an excluded zone.
+
+    Parameters
+    ----------
+    problem : Problem
+        Its domain (members leaving it are skipped).
+    grid : Grid
+        The lattice nodes. [m]
     """
     n = grid.n
     order = np.lexsort((grid.ij[:, 1], grid.ij[:, 0]))  # by i, then j

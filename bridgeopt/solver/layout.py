@@ -20,59 +20,12 @@ from bridgeopt.solver.elements import PHI_LIMIT, SENSES, centreline, sag
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.ground import Grid, build_grid, candidate_pairs
 from bridgeopt.solver.lp import LPData, LPSolution, column_entries, solve_lp
+from bridgeopt.solver.lumping import nodal_loads, restrained_rows  # also for files/
 from bridgeopt.model.materials import GRAVITY
 from bridgeopt.model.problem import Problem
 
-__all__ = ["optimize_layout", "nodal_loads", "restrained_rows", "design_from_lp", "scales"]
-
-
-def nodal_loads(problem: Problem, grid: Grid) -> np.ndarray:
-    """Applied loads lumped at grid nodes, (n, 2). [N]
-
-    A line load is shared between the nodes on its line with linear (hat)
-    shape functions, so the lumped loads have the same resultant and moment.
-    """
-    f = np.zeros((grid.n, 2))
-    for i, load in enumerate(problem.loads):
-        f[grid.node_at(load.at, f"load[{i}].at")] += load.force
-    for i, q in enumerate(problem.line_loads):
-        (xs, z), (xe, _) = q.start, q.end
-        tol = 1e-6 * max(grid.step)
-        on = np.nonzero((np.abs(grid.xz[:, 1] - z) <= tol)
-                        & (grid.xz[:, 0] >= xs - grid.step[0] + tol)
-                        & (grid.xz[:, 0] <= xe + grid.step[0] - tol))[0]
-        on = on[np.argsort(grid.xz[on, 0])]
-        x = grid.xz[on, 0]
-        if len(on) < 2 or x[0] > xs + tol or x[-1] < xe - tol:
-            raise InputError(f"line_load[{i}].from", [xs, z],
-                             "a horizontal line through grid nodes of the domain, "
-                             "from one node to another")
-        for n0, n1, x0, x1 in zip(on[:-1], on[1:], x[:-1], x[1:]):
-            lo, hi = max(x0, xs), min(x1, xe)
-            if hi <= lo:
-                continue
-            h = x1 - x0
-            share0 = (x1 * (hi - lo) - 0.5 * (hi * hi - lo * lo)) / h
-            share1 = (hi - lo) - share0
-            f[n0, 1] -= q.intensity * share0
-            f[n1, 1] -= q.intensity * share1
-    return f
-
-
-def restrained_rows(problem: Problem, grid: Grid) -> np.ndarray:
-    """Equilibrium rows (2*node + direction) that carry a free reaction."""
-    rows = set()
-    for i, s in enumerate(problem.supports):
-        node = grid.node_at(s.at, f"support[{i}].at")
-        if "x" in s.fix:
-            rows.add(2 * node)
-        if "z" in s.fix:
-            rows.add(2 * node + 1)
-    tol = 1e-6 * max(grid.step)
-    for m in problem.mirror_lines:
-        for node in np.nonzero(np.abs(grid.xz[:, 0] - m) <= tol)[0]:
-            rows.add(2 * int(node))
-    return np.array(sorted(rows), dtype=np.int64)
+__all__ = ["optimize_layout", "nodal_loads", "restrained_rows", "design_from_lp", "scales",
+           "scaled_lp_data", "solve_layout_lp"]
 
 
 def _span_limit_message(problem: Problem, grid: Grid, a, b) -> str | None:
@@ -105,7 +58,7 @@ def _coarse_duals(problem: Problem, grid: Grid) -> np.ndarray | None:
 
     coarse = dataclasses.replace(problem, spacing=2 * problem.spacing)
     try:
-        cgrid, _, _, sol, _ = _solve(coarse, member_adding=True, batch=None, coarse_start=True)
+        cgrid, _, _, sol, _ = solve_layout_lp(coarse, coarse_start=True)
     except (SolveError, InputError):
         return None
     u = sol.duals.reshape(-1, 2)
@@ -120,26 +73,77 @@ def _coarse_duals(problem: Problem, grid: Grid) -> np.ndarray | None:
 
 
 def scales(problem: Problem) -> tuple[float, float, float]:
-    """Reference length [m], force [N] and stress [Pa] of the dimensionless LP."""
+    """Reference length [m], force [N] and stress [Pa] of the dimensionless LP.
+
+    Parameters
+    ----------
+    problem : Problem
+        Its domain, loads and tension strength.
+    """
     x0, x1, z0, z1 = problem.domain.bounds
     return max(x1 - x0, z1 - z0), problem.total_applied_load(), problem.strength("tension")
 
 
-def _solve(problem: Problem, *, member_adding: bool, batch: int | None, coarse_start: bool,
-           allowed: np.ndarray | None = None):
-    """Grid, loads, LP data, LP optimum and scales of ``problem`` (``allowed``: see LPData)."""
+def scaled_lp_data(problem: Problem, xz: np.ndarray, a: np.ndarray, b: np.ndarray,
+                   f: np.ndarray, fixed: np.ndarray, reach: np.ndarray,
+                   allowed: np.ndarray | None = None) -> LPData:
+    """The dimensionless LP of ``problem`` over nodes ``xz`` and candidate pairs ``a``-``b``.
+
+    Parameters
+    ----------
+    problem : Problem
+        Materials and domain (for the reference scales, :func:`scales`).
+    xz : (n, 2) float array
+        Node coordinates. [m]
+    a, b : (m,) int arrays
+        Candidate member ends (left, or lower if vertical, first). [-]
+    f : (n, 2) float array
+        Lumped nodal loads. [N]
+    fixed : int array
+        Restrained equilibrium rows. [-]
+    reach : (m,) int array
+        Lattice reach of each pair (member adding starts from 1). [-]
+    allowed : (m, 2) bool array, optional
+        Senses each pair may take. [-]
+    """
+    ref_len, ref_force, ref_sigma = scales(problem)
+    x0, _, z0, _ = problem.domain.bounds
+    return LPData(
+        xz=(np.asarray(xz, dtype=float) - (x0, z0)) / ref_len, a=a, b=b,
+        k={s: problem.k(s) * ref_len for s in SENSES},
+        cost_scale={s: ref_sigma / problem.strength(s) for s in SENSES},
+        load=(f / ref_force).ravel(), fixed=fixed, reach=reach, allowed=allowed)
+
+
+def solve_layout_lp(problem: Problem, *, member_adding: bool = True, batch: int | None = None,
+                    coarse_start: bool = True, allowed: np.ndarray | None = None):
+    """Grid, loads, LP data, LP optimum and scales of ``problem``.
+
+    Parameters
+    ----------
+    problem : Problem
+        The layout problem.
+    member_adding, batch, coarse_start
+        As :func:`optimize_layout`.
+    allowed : (n_pairs, 2) bool array, optional
+        Senses each candidate pair may take (see :class:`LPData`).
+
+    Returns
+    -------
+    grid : Grid
+    f : (n, 2) float array
+        Lumped nodal loads. [N]
+    data : LPData
+    sol : LPSolution
+    refs : (float, float, float)
+        Reference length [m], force [N] and stress [Pa].
+    """
     grid = build_grid(problem)
     f = nodal_loads(problem, grid)
     fixed = restrained_rows(problem, grid)
     a, b = candidate_pairs(problem, grid)
-    ref_len, ref_force, ref_sigma = scales(problem)
-    origin = np.array(grid.origin)
-    data = LPData(
-        xz=(grid.xz - origin) / ref_len, a=a, b=b,
-        k={s: problem.k(s) * ref_len for s in SENSES},
-        cost_scale={s: ref_sigma / problem.strength(s) for s in SENSES},
-        load=(f / ref_force).ravel(), fixed=fixed,
-        reach=np.abs(grid.ij[b] - grid.ij[a]).max(axis=1), allowed=allowed)
+    data = scaled_lp_data(problem, grid.xz, a, b, f, fixed,
+                          np.abs(grid.ij[b] - grid.ij[a]).max(axis=1), allowed)
     guess = None
     if member_adding and coarse_start and min(problem.grid_shape()) >= 2 * COARSE_MIN:
         guess = _coarse_duals(problem, grid)
@@ -150,7 +154,7 @@ def _solve(problem: Problem, *, member_adding: bool, batch: int | None, coarse_s
         if why:
             raise SolveError("span-limit", f"{err.message}: {why}.") from None
         raise
-    return grid, f, data, sol, (ref_len, ref_force, ref_sigma)
+    return grid, f, data, sol, scales(problem)
 
 
 def optimize_layout(problem: Problem, *, member_adding: bool = True,
@@ -187,8 +191,8 @@ def optimize_layout(problem: Problem, *, member_adding: bool = True,
     .. [2] M. Gilbert, A. Tyas (2003), Engineering Computations 20(8):1044-1064.
     .. [3] H.E. Fairclough et al. (2018), Proc. R. Soc. A 474:20170726.
     """
-    grid, f, data, sol, refs = _solve(problem, member_adding=member_adding, batch=batch,
-                                      coarse_start=coarse_start)
+    grid, f, data, sol, refs = solve_layout_lp(problem, member_adding=member_adding, batch=batch,
+                                               coarse_start=coarse_start)
     if problem.domain.excluded and not problem.weightless:
         grid, f, data, sol, refs = _keep_curves_clear(
             problem, grid, data, sol, member_adding=member_adding, batch=batch,
@@ -217,7 +221,7 @@ def _keep_curves_clear(problem: Problem, grid: Grid, data: LPData, sol: LPSoluti
             return grid, nodal_loads(problem, grid), data, sol, scales(problem)
         allowed[sol.pair[bad], sol.sense[bad]] = False
         try:
-            grid, _, data, sol, _ = _solve(problem, allowed=allowed, **how)
+            grid, _, data, sol, _ = solve_layout_lp(problem, allowed=allowed, **how)
         except SolveError as err:
             if err.status != "infeasible":
                 raise
@@ -230,7 +234,25 @@ def _keep_curves_clear(problem: Problem, grid: Grid, data: LPData, sol: LPSoluti
 def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
                    f: np.ndarray, ref_len: float, ref_force: float, ref_sigma: float,
                    group: np.ndarray | None = None) -> Design:
-    """Turn a dimensionless LP optimum into a :class:`Design` in SI units."""
+    """Turn a dimensionless LP optimum into a :class:`Design` in SI units.
+
+    Parameters
+    ----------
+    problem : Problem
+        The problem solved.
+    grid : Grid
+        Node coordinates of the LP. [m]
+    data : LPData
+        The dimensionless LP.
+    sol : LPSolution
+        Its optimum.
+    f : (n, 2) float array
+        Lumped nodal loads. [N]
+    ref_len, ref_force, ref_sigma : float
+        Reference length [m], force [N] and stress [Pa] of the LP.
+    group : (m,) str array, optional
+        Element-group label of each active member (default ``"member"``).
+    """
     n_members = len(sol.pair)
     a, b = data.a[sol.pair], data.b[sol.pair]
     start_f = np.zeros((n_members, 2))

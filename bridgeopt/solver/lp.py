@@ -5,6 +5,10 @@ the smaller end force F of a vertical one), all >= 0, one column per candidate
 member and sense, plus free reaction variables on restrained directions.  Rows
 are nodal equilibrium, two per node: ``B q + r = -f``.
 
+Member adding runs by the shared driver of :mod:`bridgeopt.solver.adding`; the
+pricing step (the dual check) is :func:`price_candidates`, the columns are
+stated by :func:`lp_columns` (:mod:`bridgeopt.solver.highs`).
+
 Everything here is dimensionless (see :mod:`bridgeopt.solver.layout`): HiGHS's
 tolerances are absolute, so the LP must be stated with numbers of order one.
 
@@ -20,20 +24,18 @@ References
 
 from __future__ import annotations
 
-import logging
-import os
 import time
 from dataclasses import dataclass
 
-import highspy
 import numpy as np
 
-from bridgeopt.solver.elements import SENSES, curved_coefficients, vertical_coefficients
-from bridgeopt.errors import SolveError
+from bridgeopt.solver.adding import add_members
+from bridgeopt.solver.elements import SENSES, element_coefficients
+from bridgeopt.solver.highs import (add_columns, entry_columns, model_status, new_highs,
+                                    node_rows, raise_for_status, unit_columns)
 
-__all__ = ["LPData", "LPSolution", "solve_lp", "column_entries"]
-
-log = logging.getLogger(__name__)
+__all__ = ["LPData", "LPSolution", "solve_lp", "column_entries", "price_candidates",
+           "predicted_pairs", "lp_columns", "PRICE_TOL", "PRICE_CHUNK"]
 
 #: A column enters when u.a exceeds its cost by this fraction (dual check).
 PRICE_TOL = 1e-7
@@ -118,117 +120,82 @@ class LPSolution:
 def column_entries(data: LPData, pair: np.ndarray, sense: str):
     """Cost and the 4 (row, value) entries of the columns ``pair`` of ``sense``.
 
+    Parameters
+    ----------
+    data : LPData
+        The dimensionless LP.
+    pair : (m,) int array
+        Candidate pairs (indices into ``data.a``, ``data.b``).
+    sense : {"tension", "compression"}
+
     Returns
     -------
-    cost : (m,) float, nan where the element cannot span (k*Lx >= pi).
+    cost : (m,) float, nan where the element cannot span (k*Lx >= pi). [-]
     rows : (m, 4) int, values : (m, 4) float.  Vertical members have zero x
     entries (dropped when the CSC matrix is built).
     """
     a, b = data.a[pair], data.b[pair]
     p, q = data.xz[a], data.xz[b]
     lx, dz = q[:, 0] - p[:, 0], q[:, 1] - p[:, 1]
-    k = data.k[sense]
-    vert = lx <= 1e-12
-    m = len(pair)
-    cost = np.empty(m)
-    vals = np.zeros((m, 4))
-    if (~vert).any():
-        c, pxf, pzf, qxf, qzf = curved_coefficients(lx[~vert], dz[~vert], k, sense)
-        cost[~vert] = c
-        vals[~vert] = np.column_stack([pxf, pzf, qxf, qzf])
-    if vert.any():
-        c, pzf, qzf = vertical_coefficients(dz[vert], k, sense)
-        cost[vert] = c
-        vals[vert, 1] = pzf
-        vals[vert, 3] = qzf
+    cost, vals = element_coefficients(lx, dz, data.k[sense], sense, lx <= 1e-12)
     cost *= data.cost_scale[sense]
-    rows = np.column_stack([2 * a, 2 * a + 1, 2 * b, 2 * b + 1])
-    return cost, rows, vals
+    return cost, node_rows(a, b), vals
 
 
-def _silent_highs(rows: int) -> highspy.Highs:
-    """A Highs instance whose start-up banner does not reach stdout."""
-    fd = os.dup(1)
-    try:
-        with open(os.devnull, "w") as null:
-            os.dup2(null.fileno(), 1)
-            h = highspy.Highs()
-    finally:
-        os.dup2(fd, 1)
-        os.close(fd)
-    h.setOptionValue("output_flag", False)
-    if rows > IPM_ROWS:
-        h.setOptionValue("solver", "ipm")
-        h.setOptionValue("run_crossover", "off")
-    else:
-        h.setOptionValue("solver", "simplex")
-    h.setOptionValue("primal_feasibility_tolerance", 1e-9)
-    h.setOptionValue("dual_feasibility_tolerance", 1e-9)
-    return h
+def lp_columns(data: LPData, pair: np.ndarray, s: int):
+    """Member columns of ``pair`` in sense ``s`` that can be built: (pairs kept, ColumnSet).
+
+    Pairs whose sense is not allowed (``data.allowed``) or that no element can
+    span (nan cost) are left out; the columns are H >= 0 (or F >= 0).
+
+    Parameters
+    ----------
+    data : LPData
+        The dimensionless LP.
+    pair : (m,) int array
+        Candidate pairs.
+    s : int
+        Sense index into :data:`~bridgeopt.solver.elements.SENSES`.
+    """
+    if data.allowed is not None:
+        pair = pair[data.allowed[pair, s]]
+    cost, rows, vals = column_entries(data, pair, SENSES[s])
+    ok = np.isfinite(cost)
+    pair = pair[ok]
+    return pair, entry_columns(cost[ok], rows[ok], vals[ok], 2 * len(data.xz))
 
 
-def _add_columns(h: highspy.Highs, cost, rows, vals) -> None:
-    nz = vals != 0.0
-    counts = nz.sum(axis=1)
-    starts = np.zeros(len(cost), dtype=np.int32)
-    np.cumsum(counts[:-1], out=starts[1:])
-    h.addCols(len(cost), cost, np.zeros(len(cost)), np.full(len(cost), highspy.kHighsInf),
-              int(counts.sum()), starts, rows[nz].astype(np.int32), vals[nz])
+def price_candidates(data: LPData, in_lp: np.ndarray, duals: np.ndarray):
+    """The dual check of member adding: violated columns as (pair, sense, ratio u.a/c).
 
+    Parameters
+    ----------
+    data : LPData
+        The dimensionless LP.
+    in_lp : (n_pairs, 2) bool array
+        Columns (pair, sense) already in the LP (not priced).
+    duals : (2n,) float array
+        Equality-row duals u of the last solve. [-]
 
-class _Columns:
-    """Book-keeping of which (pair, sense) columns are in the LP."""
-
-    def __init__(self, n_pairs: int):
-        self.in_lp = np.zeros((n_pairs, 2), dtype=bool)
-        self.pair: list[np.ndarray] = []
-        self.sense: list[np.ndarray] = []
-
-    def add(self, h, data: LPData, pair: np.ndarray, s: int) -> int:
-        pair = pair[~self.in_lp[pair, s]]
-        if data.allowed is not None:
-            pair = pair[data.allowed[pair, s]]
-        if len(pair) == 0:
-            return 0
-        cost, rows, vals = column_entries(data, pair, SENSES[s])
-        ok = np.isfinite(cost)
-        pair, cost, rows, vals = pair[ok], cost[ok], rows[ok], vals[ok]
-        self.in_lp[pair, s] = True
-        if len(pair):
-            _add_columns(h, cost, rows, vals)
-            self.pair.append(pair)
-            self.sense.append(np.full(len(pair), s, dtype=np.int8))
-        return len(pair)
-
-    def arrays(self):
-        return np.concatenate(self.pair), np.concatenate(self.sense)
-
-
-def _run(h: highspy.Highs) -> str:
-    h.run()
-    status = h.getModelStatus()
-    if status == highspy.HighsModelStatus.kOptimal:
-        return "optimal"
-    if status in (highspy.HighsModelStatus.kInfeasible,
-                  highspy.HighsModelStatus.kUnboundedOrInfeasible):
-        return "infeasible"
-    return h.modelStatusToString(status)
-
-
-def _price(data: LPData, cols: _Columns, u: np.ndarray, n_pairs: int):
-    """Violated columns as (pair, sense, ratio u.a/c), all chunks."""
+    Returns
+    -------
+    (pair, sense, ratio) or None
+        Every column out of the LP whose virtual work u.a exceeds its cost c by
+        more than :data:`PRICE_TOL`, with ratio u.a/c; None when there is none.
+    """
+    n_pairs = len(data.a)
     found = []
     for start in range(0, n_pairs, PRICE_CHUNK):
         pair = np.arange(start, min(n_pairs, start + PRICE_CHUNK))
         for s, sense in enumerate(SENSES):
-            free = ~cols.in_lp[pair, s]
+            free = ~in_lp[pair, s]
             if data.allowed is not None:
                 free &= data.allowed[pair, s]
             todo = pair[free]
             if len(todo) == 0:
                 continue
             cost, rows, vals = column_entries(data, todo, sense)
-            work = np.einsum("ij,ij->i", u[rows], vals)
+            work = np.einsum("ij,ij->i", duals[rows], vals)
             with np.errstate(invalid="ignore"):
                 bad = work > cost * (1.0 + PRICE_TOL)
             if bad.any():
@@ -238,18 +205,18 @@ def _price(data: LPData, cols: _Columns, u: np.ndarray, n_pairs: int):
     return tuple(np.concatenate(x) for x in zip(*found))
 
 
-def _gap(ratio_max: float) -> float:
-    """Proven relative optimality gap when the worst column has u.a/c = ratio_max.
+def predicted_pairs(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
+    """Pairs predicted active by a guess of the duals (e.g. from a coarser grid).
 
-    Dividing the duals by ratio_max makes every column dual feasible (reaction
-    columns have zero cost and rows with reactions have zero duals), so the dual
-    objective, hence the optimum, is at least objective / ratio_max.
+    Parameters
+    ----------
+    data : LPData
+        The dimensionless LP.
+    guess : (2n,) float array
+        Estimated equality-row duals. [-]
+    limit : int
+        Most pairs returned (those of largest ratio u.a/c). [-]
     """
-    return max(0.0, 1.0 - 1.0 / ratio_max)
-
-
-def _predicted(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
-    """Pairs predicted active by a guess of the duals (from a coarser grid)."""
     picks, ratios = [], []
     for start in range(0, len(data.a), PRICE_CHUNK):
         pair = np.arange(start, min(len(data.a), start + PRICE_CHUNK))
@@ -266,6 +233,50 @@ def _predicted(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
     return np.unique(pair)
 
 
+class _LayoutModel:
+    """The layout LP held in one HiGHS instance, for :func:`~bridgeopt.solver.adding.add_members`.
+
+    Columns are appended to the live instance, so each round's dual simplex
+    starts from the previous basis (a warm start); the multi-case LP instead
+    rebuilds its model each round, see :mod:`bridgeopt.solver.multicase`.
+    """
+
+    def __init__(self, data: LPData):
+        self.data = data
+        n2 = 2 * len(data.xz)
+        self.h = new_highs(ipm=n2 > IPM_ROWS)
+        rhs = -np.asarray(data.load, dtype=float)
+        self.h.addRows(n2, rhs, rhs, 0, np.zeros(n2, dtype=np.int32),
+                       np.zeros(0, dtype=np.int32), np.zeros(0))
+        # free reactions on the restrained rows come first
+        add_columns(self.h, unit_columns(data.fixed, n2))
+        self.in_lp = np.zeros((len(data.a), 2), dtype=bool)
+        self.pair: list[np.ndarray] = []
+        self.sense: list[np.ndarray] = []
+
+    def add(self, pair: np.ndarray, group: np.ndarray) -> None:
+        for s in range(2):
+            chosen = pair[group == s]
+            kept, columns = lp_columns(self.data, chosen[~self.in_lp[chosen, s]], s)
+            # columns no element can span stay out (and are never violated: nan cost)
+            self.in_lp[kept, s] = True
+            if len(kept):
+                add_columns(self.h, columns)
+                self.pair.append(kept)
+                self.sense.append(np.full(len(kept), s, dtype=np.int8))
+
+    def solve(self) -> str:
+        self.h.run()
+        return model_status(self.h)
+
+    def price(self):
+        return price_candidates(self.data, self.in_lp,
+                                np.asarray(self.h.getSolution().row_dual))
+
+    def arrays(self):
+        return np.concatenate(self.pair), np.concatenate(self.sense)
+
+
 def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = None,
              dual_guess: np.ndarray | None = None) -> LPSolution:
     """Minimum-volume member forces for the dimensionless problem ``data``.
@@ -273,14 +284,16 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     Parameters
     ----------
     data : LPData
+        The dimensionless LP.
     member_adding : bool
-        Start from ``data.initial`` and add violated columns round by round
-        (Gilbert & Tyas 2003); if False, solve the whole ground structure at once.
+        Start from the nearest-neighbour pairs and add violated columns round by
+        round (Gilbert & Tyas 2003, :mod:`bridgeopt.solver.adding`); if False,
+        solve the whole ground structure at once.
     batch : int, optional
-        Most columns added per round (default: max(1000, 10% of columns in the LP)).
+        Most columns added per round (default: max(1000, 10% of columns in the LP)). [-]
     dual_guess : ndarray, optional
         Estimated equality-row duals (e.g. interpolated from a coarser grid); the
-        pairs they predict to be active join the first LP.
+        pairs they predict to be active join the first LP. [-]
 
     Raises
     ------
@@ -290,62 +303,22 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     """
     t0 = time.perf_counter()
     n_nodes = len(data.xz)
-    n_pairs = len(data.a)
-    h = _silent_highs(2 * n_nodes)
-    rhs = -np.asarray(data.load, dtype=float)
-    h.addRows(2 * n_nodes, rhs, rhs, 0, np.zeros(2 * n_nodes, dtype=np.int32),
-              np.zeros(0, dtype=np.int32), np.zeros(0))
-    nfix = len(data.fixed)
-    if nfix:
-        h.addCols(nfix, np.zeros(nfix), np.full(nfix, -highspy.kHighsInf),
-                  np.full(nfix, highspy.kHighsInf), nfix, np.arange(nfix, dtype=np.int32),
-                  np.asarray(data.fixed, dtype=np.int32), np.ones(nfix))
-    cols = _Columns(n_pairs)
-    reach = 1 if member_adding else np.inf
-    rounds = 0
-    gap = 0.0
+    model = _LayoutModel(data)
+    seed = None
     if member_adding and dual_guess is not None:
-        for s in range(2):
-            cols.add(h, data, _predicted(data, dual_guess, int(PREDICT_PER_NODE * n_nodes)), s)
-    while True:
-        start = np.nonzero(data.reach <= reach)[0]
-        for s in range(2):
-            cols.add(h, data, start, s)
-        rounds += 1
-        status = _run(h)
-        if status == "optimal" or len(start) == n_pairs:
-            break
-        # the start cannot carry the loads (infeasible), or only with forces so large that
-        # HiGHS gives up (status unknown): widen it
-        reach *= 2
-    while status == "optimal" and member_adding and rounds < MAX_ROUNDS:
-        u = np.asarray(h.getSolution().row_dual)
-        found = _price(data, cols, u, n_pairs)
-        if found is None:
-            gap = 0.0
-            break
-        pair, sense, ratio = found
-        gap = _gap(float(ratio.max()))
-        if 2 * n_nodes > IPM_ROWS and gap <= IPM_GAP:
-            break
-        limit = batch or max(1000, int(0.1 * cols.in_lp.sum()))
-        if len(pair) > limit:
-            top = np.argpartition(-ratio, limit)[:limit]
-            pair, sense = pair[top], sense[top]
-        for s in range(2):
-            cols.add(h, data, pair[sense == s], s)
-        rounds += 1
-        status = _run(h)
-    if rounds >= MAX_ROUNDS and member_adding:
-        log.warning("member adding stopped after %d rounds; proven gap %.2e", rounds, gap)
-    if status == "infeasible":
-        raise SolveError("infeasible", "no structure in the ground structure can carry the loads "
-                         "to the supports")
-    if status != "optimal":
-        raise SolveError("solver", f"HiGHS stopped without a proven optimum: {status}")
+        seed = predicted_pairs(data, dual_guess, int(PREDICT_PER_NODE * n_nodes))
+    # simplex solves to the exact optimum; the interior point method (large LPs) stops
+    # at a proven gap, as it has no exact vertex duals
+    result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
+                         gap_tol=IPM_GAP if 2 * n_nodes > IPM_ROWS else None,
+                         max_rounds=MAX_ROUNDS, seed=seed)
+    raise_for_status(result.status, "no structure in the ground structure can carry the "
+                     "loads to the supports")
+    h = model.h
     sol = h.getSolution()
     x = np.asarray(sol.col_value)
-    pair, sense = cols.arrays()
+    pair, sense = model.arrays()
+    nfix = len(data.fixed)
     force = x[nfix:]
     scale = float(np.max(force)) if len(force) else 0.0
     active = force > 1e-9 * scale
@@ -353,5 +326,5 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
         objective=float(h.getInfo().objective_function_value),
         pair=pair[active], sense=sense[active], force=force[active],
         reactions=x[:nfix].copy(), duals=np.asarray(sol.row_dual).copy(),
-        rounds=rounds, columns=int(cols.in_lp.sum()), candidates=2 * n_pairs,
-        seconds=time.perf_counter() - t0, gap=gap)
+        rounds=result.rounds, columns=int(model.in_lp.sum()), candidates=2 * len(data.a),
+        seconds=time.perf_counter() - t0, gap=result.gap)

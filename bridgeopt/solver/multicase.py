@@ -72,23 +72,24 @@ References
 from __future__ import annotations
 
 import dataclasses
-import logging
 import time
 from dataclasses import dataclass
 
-import highspy
 import numpy as np
 
 from bridgeopt.errors import SolveError
-from bridgeopt.solver.ground import build_grid, candidate_pairs
-from bridgeopt.solver.layout import nodal_loads, restrained_rows
 from bridgeopt.model.loads import CaseStudy, UnitCosts
-from bridgeopt.solver.lp import PRICE_CHUNK, PRICE_TOL, _silent_highs
 from bridgeopt.model.materials import GRAVITY
+from bridgeopt.solver.adding import add_members
+from bridgeopt.solver.casedesign import CaseDesign, case_design
+from bridgeopt.solver.ground import build_grid, candidate_pairs
+from bridgeopt.solver.elements import bar_factors
+from bridgeopt.solver.highs import (INF, node_rows, raise_for_status, solve_columns,
+                                    triplet_columns)
+from bridgeopt.solver.lumping import nodal_loads, restrained_rows
+from bridgeopt.solver.lp import PRICE_CHUNK, PRICE_TOL
 
 __all__ = ["CaseDesign", "optimize_cases", "single_case_reference", "MAX_FULL_COLUMNS"]
-
-log = logging.getLogger(__name__)
 
 #: Without member adding, the whole ground structure goes into one LP; refuse
 #: more columns than this (about a 12 x 12 grid with 4 cases), as the LP's
@@ -145,16 +146,33 @@ def _geometry(data: _Data, pair: np.ndarray):
 
 
 class _Model:
-    """The LP over a set of (pair, group) members, rebuilt from scratch each round."""
+    """The LP over a set of (pair, group) members, for :func:`~bridgeopt.solver.adding.add_members`.
 
-    def __init__(self, data: _Data):
+    Unlike the single-case LP (:mod:`bridgeopt.solver.lp`), which appends columns
+    to a live HiGHS instance so that dual simplex restarts from the last basis,
+    this model is rebuilt from scratch each round: a member brings rows (its 2K
+    stress rows) as well as columns, and the interior point method used here has
+    no warm start to keep.
+    """
+
+    def __init__(self, data: _Data, exact: bool):
         self.data = data
+        self.exact = exact
+        self.out: dict | None = None
         self.K = data.loads.shape[0]
         self.n2 = data.loads.shape[1]
         self.in_lp = np.zeros((len(data.a), len(data.groups)), dtype=bool)
 
-    def solve(self, exact: bool = True):
-        """Solve the LP over the members in it; ``exact=False``: interior point, no crossover."""
+    def add(self, pair: np.ndarray, group: np.ndarray) -> None:
+        self.in_lp[pair, group] = True
+
+    def solve(self, exact: bool | None = None) -> str:
+        """Solve the LP over the members in it; the optimum goes to ``self.out``.
+
+        Interior point, with crossover to a vertex when ``exact`` (default
+        ``self.exact``).
+        """
+        exact = self.exact if exact is None else exact
         d, K, n2 = self.data, self.K, self.n2
         pair, grp = np.nonzero(self.in_lp)
         m = len(pair)
@@ -171,6 +189,8 @@ class _Model:
         ri, ci, vi = [], [], []
         col = np.arange(m)
         half_w = -0.5 * kw * length
+        # force columns: straight bars of free axial force, plus their stress rows
+        bar_rows, bar = node_rows(ea, eb), bar_factors(unit)
         for k in range(K):
             off = k * n2
             # a columns: lumped weight in z rows, stress rows
@@ -178,200 +198,81 @@ class _Model:
             ci += [col, col, col, col]
             vi += [half_w, half_w, -st, sc]
             qc = m * (1 + k) + col
-            ri += [off + 2 * ea, off + 2 * ea + 1, off + 2 * eb, off + 2 * eb + 1,
-                   rows_t[k], rows_c[k]]
+            ri += [*(off + bar_rows).T, rows_t[k], rows_c[k]]
             ci += [qc] * 6
-            vi += [unit[:, 0], unit[:, 1], -unit[:, 0], -unit[:, 1], np.ones(m), np.ones(m)]
+            vi += [*bar.T, np.ones(m), np.ones(m)]
             rc = m * (1 + K) + k * nfix + np.arange(nfix)
             ri.append(off + d.fixed)
             ci.append(rc)
             vi.append(np.ones(nfix))
-        r = np.concatenate(ri).astype(np.int64)
-        c = np.concatenate(ci).astype(np.int64)
-        v = np.concatenate(vi).astype(float)
-        keep = v != 0
-        r, c, v = r[keep], c[keep], v[keep]
         n_col = m * (1 + K) + K * nfix
         n_row = n_eq + 2 * K * m
-        order = np.lexsort((r, c))
-        r, c, v = r[order], c[order], v[order]
-        start = np.zeros(n_col + 1, dtype=np.int64)
-        np.add.at(start, c + 1, 1)
-        np.cumsum(start, out=start)
-        inf = highspy.kHighsInf
-        cost = np.concatenate([price * length, np.zeros(n_col - m)])
-        lower = np.concatenate([np.zeros(m)] + [np.where(sc == 0, 0.0, -inf)] * K
-                               + [np.full(K * nfix, -inf)])
-        upper = np.concatenate([np.full(m, inf)] + [np.where(st == 0, 0.0, inf)] * K
-                               + [np.full(K * nfix, inf)])
+        columns = triplet_columns(
+            np.concatenate(ri), np.concatenate(ci), np.concatenate(vi), shape=(n_row, n_col),
+            cost=np.concatenate([price * length, np.zeros(n_col - m)]),
+            lower=np.concatenate([np.zeros(m)] + [np.where(sc == 0, 0.0, -INF)] * K
+                                 + [np.full(K * nfix, -INF)]),
+            upper=np.concatenate([np.full(m, INF)] + [np.where(st == 0, 0.0, INF)] * K
+                                 + [np.full(K * nfix, INF)]))
         rhs = -d.loads.ravel()
-        row_lo = np.concatenate([rhs, np.full(K * m, -inf), np.zeros(K * m)])
-        row_hi = np.concatenate([rhs, np.zeros(K * m), np.full(K * m, inf)])
-        lp = highspy.HighsLp()
-        lp.num_col_, lp.num_row_ = int(n_col), int(n_row)
-        lp.col_cost_, lp.col_lower_, lp.col_upper_ = cost, lower, upper
-        lp.row_lower_, lp.row_upper_ = row_lo, row_hi
-        lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
-        lp.a_matrix_.num_col_, lp.a_matrix_.num_row_ = int(n_col), int(n_row)
-        lp.a_matrix_.start_ = start.astype(np.int32)
-        lp.a_matrix_.index_ = r.astype(np.int32)
-        lp.a_matrix_.value_ = v
-        h = _silent_highs(0)
-        h.setOptionValue("solver", "ipm")
-        h.setOptionValue("run_crossover", "on" if exact else "off")
-        h.passModel(lp)
-        h.run()
-        status = h.getModelStatus()
-        if status != highspy.HighsModelStatus.kOptimal:
-            infeasible = status in (highspy.HighsModelStatus.kInfeasible,
-                                    highspy.HighsModelStatus.kUnboundedOrInfeasible)
-            return ("infeasible" if infeasible else h.modelStatusToString(status)), None
-        sol = h.getSolution()
-        x = np.asarray(sol.col_value)
-        y = np.asarray(sol.row_dual)[:n_eq].reshape(K, n2)
-        out = {"pair": pair, "group": grp, "area": x[:m],
-               "force": x[m:m * (1 + K)].reshape(K, m).T,
-               "reactions": x[m * (1 + K):].reshape(K, nfix),
-               "duals": y, "objective": float(h.getInfo().objective_function_value),
-               "length": length, "unit": unit}
-        return "optimal", out
+        res = solve_columns(columns, np.concatenate([rhs, np.full(K * m, -INF), np.zeros(K * m)]),
+                            np.concatenate([rhs, np.zeros(K * m), np.full(K * m, INF)]),
+                            ipm=True, crossover=exact)
+        self.out = None
+        if res.status != "optimal":
+            return res.status
+        x = res.x
+        self.out = {"pair": pair, "group": grp, "area": x[:m],
+                    "force": x[m:m * (1 + K)].reshape(K, m).T,
+                    "reactions": x[m * (1 + K):].reshape(K, nfix),
+                    "duals": res.row_dual[:n_eq].reshape(K, n2), "objective": res.objective,
+                    "length": length, "unit": unit}
+        return "optimal"
 
-    def price(self, y: np.ndarray, tol: float = PRICE_TOL):
-        """Violating (pair, group, ratio) for the duals y (K, 2n), chunk by chunk."""
-        d = self.data
-        found = []
-        n_pairs = len(d.a)
-        yx, yz = y[:, 0::2], y[:, 1::2]            # (K, n)
-        for s0 in range(0, n_pairs, PRICE_CHUNK):
-            pair = np.arange(s0, min(n_pairs, s0 + PRICE_CHUNK))
-            length, unit = _geometry(d, pair)
-            a, b = d.a[pair], d.b[pair]
-            # e_k = y_k . b_m: (m, K)
-            e = ((yx[:, a] - yx[:, b]) * unit[:, 0] + (yz[:, a] - yz[:, b]) * unit[:, 1]).T
-            zsum = (yz[:, a] + yz[:, b]).T                 # (m, K)
-            for gi, (_, st, sc, kw, price) in enumerate(d.groups):
-                free = ~self.in_lp[pair, gi]
-                if not free.any():
-                    continue
-                gain = np.maximum(st * e, -sc * e).clip(min=0.0) if (st and sc) else (
-                    np.maximum(st * e, 0.0) if st else np.maximum(-sc * e, 0.0))
-                work = gain.sum(axis=1) - 0.5 * kw * length * zsum.sum(axis=1)
-                cost = price * length
-                bad = free & (work > cost * (1.0 + tol))
-                if bad.any():
-                    found.append((pair[bad], np.full(bad.sum(), gi), work[bad] / cost[bad]))
-        if not found:
-            return None
-        return tuple(np.concatenate(x) for x in zip(*found))
+    def price(self):
+        """Violating (pair, group, ratio) at the last solve's duals."""
+        return price_cases(self.data, self.in_lp, self.out["duals"])
 
 
-@dataclass(frozen=True)
-class CaseDesign:
-    """A structure that carries every load case of a :class:`CaseStudy`.
+def price_cases(data: _Data, in_lp: np.ndarray, y: np.ndarray, tol: float = PRICE_TOL):
+    """The multi-case dual check (module docstring): violating (pair, group, ratio), or None.
 
-    Attributes
+    Parameters
     ----------
-    status, message : str
-    volume : float
-        Material volume of the reported structure (``copies`` times the model). [m3]
-    cost : float
-        Priced volume (``copies`` times the model), in the study's currency; the
-        volume when no costs are given. [currency or m3]
-    weight : float
-        Self-weight of the reported structure. [N]
-    nodes : (n, 2) float array [m]
-    start, end : (m,) int arrays: member ends (indices into ``nodes``).
-    group : (m,) str array: ``"member"``, or ``"tension"`` / ``"compression"``.
-    area : (m,) float array: cross-section area. [m2]
-    length : (m,) float array [m]
-    member_volume : (m,) float array [m3]
-    forces : (m, K) float array: axial force in each case, tension positive. [N]
-    governing : (m,) int array: the case with the largest |q|/(sigma a).
-    utilisation : (m, K) float array: |q| / (sigma a) per case. [-]
-    loads : (K, n, 2) float array: applied nodal loads per case (self-weight excluded). [N]
-    reactions : (K, r, 3) float array: rows (node, Rx, Rz) per case. [-, N, N]
-    case_names : tuple of str
-    stats : dict
-    copies : float
-    study : CaseStudy
+    data : _Data
+        The dimensionless multi-case LP.
+    in_lp : (n_pairs, groups) bool array
+        Members in the LP (not priced).
+    y : (K, 2n) float array
+        Equality-row duals of each case. [-]
+    tol : float
+        Relative violation needed. [-]
     """
-
-    status: str
-    message: str
-    volume: float
-    cost: float
-    weight: float
-    nodes: np.ndarray
-    start: np.ndarray
-    end: np.ndarray
-    group: np.ndarray
-    area: np.ndarray
-    length: np.ndarray
-    member_volume: np.ndarray
-    forces: np.ndarray
-    governing: np.ndarray
-    utilisation: np.ndarray
-    loads: np.ndarray
-    reactions: np.ndarray
-    case_names: tuple
-    stats: dict
-    copies: float
-    study: object = dataclasses.field(repr=False, default=None)
-
-    def member_weight(self) -> np.ndarray:
-        """Self-weight of each member of the model. [N]"""
-        p = self.study.problem
-        dens = np.where(self.group == "compression", p.density("compression"),
-                        p.density("tension") if self.study.problem.compression_material is not None
-                        else p.material.density)
-        return dens * GRAVITY * self.member_volume
-
-    def residual(self, case: int) -> np.ndarray:
-        """Out-of-balance force at every node in ``case``, (n, 2). [N]
-
-        Member end forces (q n on the start node, -q n on the end node), half of
-        each member's weight at each end, applied loads and reactions.
-        """
-        r = np.array(self.loads[case], dtype=float)
-        unit = (self.nodes[self.end] - self.nodes[self.start]) / self.length[:, None]
-        q = self.forces[:, case]
-        np.add.at(r, self.start, q[:, None] * unit)
-        np.add.at(r, self.end, -q[:, None] * unit)
-        w = self.member_weight()
-        np.add.at(r[:, 1], self.start, -0.5 * w)
-        np.add.at(r[:, 1], self.end, -0.5 * w)
-        for node, rx, rz in self.reactions[case]:
-            r[int(node)] += (rx, rz)
-        return r
-
-    def governing_counts(self) -> dict:
-        """Number of members each case governs, by case name."""
-        counts = np.bincount(self.governing, minlength=len(self.case_names))
-        return {n: int(c) for n, c in zip(self.case_names, counts)}
-
-    def to_frame(self):
-        """Members as a :class:`pandas.DataFrame` (one row per member; forces per case)."""
-        import pandas as pd
-
-        df = pd.DataFrame({
-            "start": self.start, "end": self.end,
-            "x_start_m": self.nodes[self.start, 0], "z_start_m": self.nodes[self.start, 1],
-            "x_end_m": self.nodes[self.end, 0], "z_end_m": self.nodes[self.end, 1],
-            "group": self.group, "area_m2": self.area, "length_m": self.length,
-            "volume_m3": self.member_volume,
-            "governing_case": [self.case_names[i] for i in self.governing],
-        })
-        for k, name in enumerate(self.case_names):
-            df[f"force_{name}_N"] = self.forces[:, k]
-        return df
-
-    def summary(self) -> str:
-        """A few lines for the engineer."""
-        counts = ", ".join(f"{n}: {c}" for n, c in self.governing_counts().items())
-        return (f"{self.status}: volume {self.volume:.6g} m3, cost {self.cost:.6g}, weight "
-                f"{self.weight:.6g} N, {len(self.start)} members; governing case (members) "
-                f"{counts}; {self.stats.get('rounds', 0)} LP rounds, "
-                f"{self.stats.get('seconds', 0.0):.2f} s")
+    d = data
+    found = []
+    n_pairs = len(d.a)
+    yx, yz = y[:, 0::2], y[:, 1::2]            # (K, n)
+    for s0 in range(0, n_pairs, PRICE_CHUNK):
+        pair = np.arange(s0, min(n_pairs, s0 + PRICE_CHUNK))
+        length, unit = _geometry(d, pair)
+        a, b = d.a[pair], d.b[pair]
+        # e_k = y_k . b_m: (m, K)
+        e = ((yx[:, a] - yx[:, b]) * unit[:, 0] + (yz[:, a] - yz[:, b]) * unit[:, 1]).T
+        zsum = (yz[:, a] + yz[:, b]).T                 # (m, K)
+        for gi, (_, st, sc, kw, price) in enumerate(d.groups):
+            free = ~in_lp[pair, gi]
+            if not free.any():
+                continue
+            gain = np.maximum(st * e, -sc * e).clip(min=0.0) if (st and sc) else (
+                np.maximum(st * e, 0.0) if st else np.maximum(-sc * e, 0.0))
+            work = gain.sum(axis=1) - 0.5 * kw * length * zsum.sum(axis=1)
+            cost = price * length
+            bad = free & (work > cost * (1.0 + tol))
+            if bad.any():
+                found.append((pair[bad], np.full(bad.sum(), gi), work[bad] / cost[bad]))
+    if not found:
+        return None
+    return tuple(np.concatenate(x) for x in zip(*found))
 
 
 def _data(study: CaseStudy):
@@ -432,105 +333,24 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
     grid, f, data, (ref_len, ref_force, ref_sigma) = _data(study)
     K = len(study.cases)
     n_pairs, n_groups = len(data.a), len(data.groups)
-    model = _Model(data)
     if not member_adding:
         cols = n_pairs * n_groups * (1 + K)
         if cols > MAX_FULL_COLUMNS:
             raise SolveError("too-large", f"the full ground structure has {cols} columns "
                              f"(> {MAX_FULL_COLUMNS}); use member adding or a coarser grid")
-    reach = 1 if member_adding else np.inf
-    rounds = 0
-    exact = not member_adding
-    while True:
-        model.in_lp[data.reach <= reach] = True
-        rounds += 1
-        status, out = model.solve(exact)
-        if status == "optimal" or model.in_lp.all():
-            break
-        reach *= 2
-    gap = 0.0
-    while status == "optimal" and member_adding and rounds < MAX_ROUNDS:
-        found = model.price(out["duals"])
-        if found is None:
-            gap = 0.0
-            break
-        pair, grp, ratio = found
-        gap = max(0.0, 1.0 - 1.0 / float(ratio.max()))
-        if gap <= GAP_TOL:
-            break
-        limit = batch or max(1000, int(0.1 * model.in_lp.sum()))
-        if len(pair) > limit:
-            top = np.argpartition(-ratio, limit)[:limit]
-            pair, grp = pair[top], grp[top]
-        model.in_lp[pair, grp] = True
-        rounds += 1
-        status, out = model.solve(exact)
-    if status == "optimal" and not exact:
-        status, out = model.solve(True)   # same members, solved to a vertex: clean forces
-    if status == "infeasible":
-        raise SolveError("infeasible", "no structure in the ground structure can carry every "
-                         "load case to the supports")
-    if status != "optimal":
-        raise SolveError("solver", f"HiGHS stopped without a proven optimum: {status}")
-    if rounds >= MAX_ROUNDS:
-        log.warning("member adding stopped after %d rounds", rounds)
-    return _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds,
+    # member adding solves by the interior point method without crossover and stops at a
+    # proven gap; the full ground structure is solved to a vertex at once
+    model = _Model(data, exact=not member_adding)
+    result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
+                         gap_tol=GAP_TOL, max_rounds=MAX_ROUNDS)
+    status, rounds, gap = result.status, result.rounds, result.gap
+    if status == "optimal" and not model.exact:
+        status = model.solve(exact=True)   # same members, solved to a vertex: clean forces
+    raise_for_status(status, "no structure in the ground structure can carry every load case "
+                     "to the supports")
+    out = model.out
+    return case_design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds,
                    time.perf_counter() - t0, int(model.in_lp.sum()), gap)
-
-
-def _design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds, seconds,
-            columns, gap) -> CaseDesign:
-    area_d = out["area"]
-    keep = area_d > 1e-9 * max(float(area_d.max()), 1e-300)
-    pair, grp = out["pair"][keep], out["group"][keep]
-    a, b = data.a[pair], data.b[pair]
-    area = area_d[keep] * ref_force / ref_sigma
-    length = out["length"][keep] * ref_len
-    forces = out["force"][keep] * ref_force
-    groups = data.groups
-    sig_t = np.array([g[1] for g in groups])[grp] * ref_sigma
-    sig_c = np.array([g[2] for g in groups])[grp] * ref_sigma
-    cap = np.where(forces >= 0, sig_t[:, None], sig_c[:, None]) * area[:, None]
-    with np.errstate(invalid="ignore", divide="ignore"):
-        util = np.where(cap > 0, np.abs(forces) / cap, 0.0)
-    loaded = np.nonzero(np.any(f != 0, axis=(0, 2)))[0]
-    used = np.unique(np.concatenate([a, b, loaded, data.fixed // 2]))
-    index = -np.ones(grid.n, dtype=np.int64)
-    index[used] = np.arange(len(used))
-    K = len(study.cases)
-    nfix = len(data.fixed)
-    reactions = np.zeros((K, nfix, 3))
-    reactions[:, :, 0] = index[data.fixed // 2]
-    for k in range(K):
-        reactions[k, np.arange(nfix), 1 + data.fixed % 2] = out["reactions"][k] * ref_force
-    volume = area * length
-    costs = study.costs
-    price = np.ones(len(area))
-    if costs is not None:
-        price = np.where(grp == len(groups) - 1, costs.compression, costs.tension) \
-            if len(groups) > 1 else np.full(len(area), costs.tension)
-    p = study.problem
-    copies = p.copies
-    names = np.array([g[0] for g in groups])[grp]
-    design = CaseDesign(
-        status="optimal",
-        message=("proven optimum of the multi-case layout LP (lumped self-weight)" if gap == 0
-                 else "optimum of the multi-case layout LP (lumped self-weight) within a "
-                 f"proven gap of {gap:.1e}"),
-        volume=copies * float(volume.sum()), cost=copies * float((price * volume).sum()),
-        weight=0.0, nodes=grid.xz[used], start=index[a], end=index[b], group=names,
-        area=area, length=length, member_volume=volume, forces=forces,
-        governing=np.argmax(util, axis=1) if len(area) else np.zeros(0, int),
-        utilisation=util, loads=f[:, used], reactions=reactions,
-        case_names=tuple(c.name for c in study.cases),
-        stats={"rounds": rounds, "seconds": seconds, "columns": columns,
-               "candidates": len(data.a) * len(groups), "grid_nodes": grid.n,
-               "lp_objective": out["objective"], "gap": gap},
-        copies=copies, study=study)
-    weight = copies * float(design.member_weight().sum())
-    worst = max(float(np.abs(design.residual(k)).max()) for k in range(K))
-    stats = dict(design.stats, equilibrium_error=worst / ref_force)
-    return dataclasses.replace(design, weight=weight, stats=stats)
 
 
 def single_case_reference(study: CaseStudy, case: int | None = None):

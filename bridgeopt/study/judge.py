@@ -47,7 +47,7 @@ from bridgeopt.cautions import CAUTIONS
 from bridgeopt.solver.design import Design
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.frame import Frame, position_tolerance, size_frame
-from bridgeopt.solver.layout import _solve, design_from_lp
+from bridgeopt.solver.layout import design_from_lp, solve_layout_lp
 from bridgeopt.model.problem import Problem
 from bridgeopt.files.proposal import Proposal
 
@@ -94,8 +94,8 @@ def _reference_with_field(problem: Problem):
     """The reference optimum and its virtual displacement field u(x, z) [m3/N]."""
     from scipy.interpolate import LinearNDInterpolator, NearestNDInterpolator
 
-    grid, f, data, sol, refs = _solve(problem, member_adding=True, batch=None,
-                                      coarse_start=True)
+    grid, f, data, sol, refs = solve_layout_lp(problem, member_adding=True, batch=None,
+                                               coarse_start=True)
     reference = design_from_lp(problem, grid, data, sol, f, *refs)
     ref_len, ref_force, ref_sigma = refs
     u = sol.duals.reshape(-1, 2) * ref_len / ref_sigma
@@ -122,11 +122,25 @@ def unbalanced_nodes(problem: Problem, proposal: Proposal) -> list[int]:
     its load, or the self-weight its members hang on it.  Then, if none is
     found, a global one: the least total out-of-balance force (an L1 norm) of
     straight weightless bars of free sign under the applied loads, solved as a
-    linear program; nodes left out of balance belong to a mechanism.
-    """
-    from scipy.optimize import linprog
+    linear program over sparse columns; nodes left out of balance belong to a
+    mechanism.
 
+    Parameters
+    ----------
+    problem : Problem
+        Supports, mirror lines and loads (at the proposal's nodes).
+    proposal : Proposal
+        Nodes [m] and members of the proposed layout.
+
+    Returns
+    -------
+    list of int
+        The nodes that cannot be balanced (empty when every node can).
+    """
+    from bridgeopt.solver.elements import bar_factors
     from bridgeopt.solver.frame import frame_loads, frame_restraints
+    from bridgeopt.solver.highs import (DEFAULT_TOL, INF, entry_columns, node_rows,
+                                        solve_columns, stack_columns, unit_columns)
 
     nodes = proposal.nodes
     n = len(nodes)
@@ -157,25 +171,22 @@ def unbalanced_nodes(problem: Problem, proposal: Proposal) -> list[int]:
             bad.append(i)
     if bad:
         return bad
-    # global: min sum(s+ + s-) with B q + R r + s+ - s- = -f, q and r free
-    m = len(d)
-    b = np.zeros((2 * n, m))
-    b[2 * proposal.start, np.arange(m)] = d[:, 0]
-    b[2 * proposal.start + 1, np.arange(m)] = d[:, 1]
-    b[2 * proposal.end, np.arange(m)] = -d[:, 0]
-    b[2 * proposal.end + 1, np.arange(m)] = -d[:, 1]
-    r = np.zeros((2 * n, len(rows)))
-    for j, row in enumerate(sorted(rows)):
-        r[row, j] = 1.0
-    eye = np.eye(2 * n)
-    a_eq = np.hstack([b, r, eye, -eye])
-    cost = np.concatenate([np.zeros(m + len(rows)), np.ones(4 * n)])
-    bounds = [(None, None)] * (m + len(rows)) + [(0, None)] * (4 * n)
-    res = linprog(cost, A_eq=a_eq, b_eq=-f.ravel() / scale, bounds=bounds, method="highs")
-    if res.status != 0:
+    # global: min sum(s+ + s-) with B q + R r + s+ - s- = -f, q and r free (sparse columns)
+    n2 = 2 * n
+    every = np.arange(n2)
+    columns = stack_columns(
+        entry_columns(np.zeros(len(d)), node_rows(proposal.start, proposal.end), bar_factors(d),
+                      n2, lower=-INF),
+        unit_columns(sorted(rows), n2),
+        unit_columns(every, n2, cost=1.0, lower=0.0),
+        unit_columns(every, n2, cost=1.0, lower=0.0, value=-1.0))
+    rhs = -f.ravel() / scale
+    # HiGHS's default tolerance, as this check always had: it only names the nodes
+    res = solve_columns(columns, rhs, rhs, tolerance=DEFAULT_TOL)
+    if res.status != "optimal":
         return []
-    s = res.x[m + len(rows):]
-    out = (s[:2 * n] + s[2 * n:]).reshape(n, 2)
+    s = res.x[columns.size - 2 * n2:]
+    out = (s[:n2] + s[n2:]).reshape(n, 2)
     return [int(i) for i in np.nonzero(np.abs(out).max(axis=1) > 1e-7)[0]]
 
 

@@ -13,7 +13,7 @@ import numpy as np
 import pytest
 
 from bridgeopt import Domain, InputError, LineLoad, Material, PointLoad, Problem, Support
-from bridgeopt.solver.frame import Frame, _lp_data, frame_from_design, size_frame
+from bridgeopt.solver.frame import Frame, frame_from_design, frame_lp_data, size_frame
 from bridgeopt.geometry.optimize import NodeMoves, default_moves, optimize_geometry
 from bridgeopt.solver.lp import solve_lp
 from bridgeopt.geometry.sensitivity import volume_gradient
@@ -54,7 +54,7 @@ def test_volume_gradient_matches_finite_differences(material):
     nodes[2, 0] += 1.0          # deck node off its grid point: its load share moves too
     nodes[6] += (0.7, -0.4)
     frame = frame.moved(nodes)
-    data, _, refs = _lp_data(frame)
+    data, _, refs = frame_lp_data(frame)
     grad = volume_gradient(frame.problem, data, solve_lp(data, member_adding=False))
     h = 1e-6
     smooth = 0
@@ -65,7 +65,7 @@ def test_volume_gradient_matches_finite_differences(material):
         for sign in (1, 0, -1):
             moved = nodes.copy().ravel()
             moved[coord] += sign * h * refs[0]
-            vols.append(solve_lp(_lp_data(frame.moved(moved.reshape(-1, 2)))[0],
+            vols.append(solve_lp(frame_lp_data(frame.moved(moved.reshape(-1, 2)))[0],
                                  member_adding=False).objective)
         right, left = (vols[0] - vols[1]) / h, (vols[1] - vols[2]) / h
         tol = 1e-4 * max(1.0, abs(right), abs(left))

@@ -263,8 +263,8 @@ def test_no_curved_member_enters_the_channel():
     assert_clear(sc.problem, d.nodes[m.start], d.nodes[m.end], m.sense)
     # the check bites: without it (chords only), a cable sags into the channel
     from bridgeopt.solver import layout
-    grid, f, data, sol, refs = layout._solve(sc.problem, member_adding=True, batch=None,
-                                             coarse_start=True)
+    grid, f, data, sol, refs = layout.solve_layout_lp(sc.problem, member_adding=True,
+                                                      batch=None, coarse_start=True)
     raw = layout.design_from_lp(sc.problem, grid, data, sol, f, *refs)
     with pytest.raises(AssertionError):
         assert_clear(sc.problem, raw.nodes[raw.members.start], raw.nodes[raw.members.end],
