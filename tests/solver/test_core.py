@@ -26,7 +26,7 @@ from bridgeopt.solver.lp import column_entries, price_candidates
 from bridgeopt.solver.lumping import line_load_shares
 from bridgeopt.study.judge import unbalanced_nodes
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 WEIGHTLESS = Material("weightless", 1.0, 1.0, 0.0)
 
 
