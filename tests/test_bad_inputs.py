@@ -191,3 +191,85 @@ def test_a_huge_key_or_value_is_not_echoed_whole():
     with pytest.raises(InputError) as err:
         _bridge(name="x" * 100_000, span="y" * 100_000)
     assert len(str(err.value)) < 1000
+
+
+def _bracket(**changes):
+    from bridgeopt import Domain, PointLoad, Problem, Support
+
+    base = dict(domain=Domain.rectangle((0.0, 4.0), (0.0, 2.0)), spacing=0.5, material=STEEL,
+                supports=(Support((0.0, 0.0)), Support((0.0, 2.0))),
+                loads=(PointLoad((4.0, 1.0), (0.0, -1.0e6)),))
+    return Problem(**{**base, **changes})
+
+
+@pytest.mark.parametrize("batch", [-5, 1.5, 0, True, "10"])
+def test_optimize_layout_checks_batch(batch):
+    from bridgeopt import optimize_layout
+
+    with pytest.raises(InputError) as err:
+        optimize_layout(_bracket(), batch=batch)
+    assert err.value.field == "batch" and "a whole number >= 1" in str(err.value)
+
+
+def test_optimize_layout_checks_its_problem_and_flags():
+    from bridgeopt import optimize_layout
+
+    with pytest.raises(InputError) as err:
+        optimize_layout("bracket.toml")
+    assert err.value.field == "problem" and "a bridgeopt Problem" in str(err.value)
+    with pytest.raises(InputError) as err:
+        optimize_layout(_bracket(), member_adding="yes")
+    assert err.value.field == "member_adding" and "True or False" in str(err.value)
+
+
+LOADS = [
+    ("huge point load", lambda: _bracket(loads=(_point((0.0, -1e306)),)), "load.force",
+     "magnitude 0.001 to 1e+15 N"),
+    ("vanishing point load", lambda: _bracket(loads=(_point((0.0, -5e-324)),)), "load.force",
+     "magnitude 0.001 to 1e+15 N"),
+    ("huge line load", lambda: _line(1e306), "line_load.intensity", "magnitude 1e-06 to 1e+12"),
+    ("text line load", lambda: _line("heavy"), "line_load.intensity", "magnitude"),
+    ("point far away", lambda: _point((0.0, -1.0), at=(1e300, 0.0)), "load.at",
+     "within +-1e+07 m"),
+]
+
+
+def _point(force, at=(4.0, 1.0)):
+    from bridgeopt import PointLoad
+
+    return PointLoad(at, force)
+
+
+def _line(intensity):
+    from bridgeopt import LineLoad
+
+    return LineLoad((0.0, 0.0), (4.0, 0.0), intensity)
+
+
+@pytest.mark.parametrize("what,build,field,valid", LOADS, ids=[r[0] for r in LOADS])
+def test_loads_outside_the_solvers_range_are_refused(what, build, field, valid):
+    with pytest.raises(InputError) as err:
+        build()
+    assert err.value.field == field and valid in str(err.value)
+
+
+def test_supports_that_hold_x_only_say_why_nothing_carries_the_load():
+    from bridgeopt import SolveError, Support, optimize_layout
+
+    problem = _bracket(supports=(Support((0.0, 0.0), "x"), Support((0.0, 2.0), "x")))
+    with pytest.raises(SolveError) as err:
+        optimize_layout(problem)
+    assert err.value.status == "infeasible"
+    assert "no support (or mirror line) holds the structure in z" in err.value.message
+    assert "fix z at one support at least" in err.value.message
+
+
+def test_a_design_failing_the_equilibrium_check_is_never_returned():
+    from bridgeopt import SolveError
+    from bridgeopt.solver.design import accepted
+
+    accepted(12.5, 1e-9)                    # a sound design passes
+    for volume, error in [(float("inf"), 0.0), (0.0, 0.0), (10.0, 0.01), (10.0, float("nan"))]:
+        with pytest.raises(SolveError) as err:
+            accepted(volume, error)
+        assert err.value.status == "numerical"

@@ -13,7 +13,8 @@ import numbers
 
 from bridgeopt.errors import InputError
 
-__all__ = ["SPAN", "DECK_LOAD", "STRENGTH", "DENSITY", "HEIGHT_PER_SPAN", "FORCE",
+__all__ = ["SPAN", "DECK_LOAD", "STRENGTH", "DENSITY", "HEIGHT_PER_SPAN", "FORCE", "INTENSITY",
+           "COORDINATE",
            "checked_number", "checked_whole"]
 
 #: Span of a bridge scenario. [m]
@@ -26,8 +27,12 @@ DECK_LOAD = (1.0, 1.0e9)
 STRENGTH = (1.0e6, 1.0e11)
 #: Mass density, when not 0 (weightless). [kg/m3]
 DENSITY = (1.0, 30_000.0)
-#: Magnitude of a point load, or of a line load's intensity times the domain width. [N]
+#: Magnitude of a point load. [N]
 FORCE = (1.0e-3, 1.0e15)
+#: Magnitude of a line load's intensity. [N/m]
+INTENSITY = (1.0e-6, 1.0e12)
+#: Largest coordinate of a point of a problem (10,000 km). [m]
+COORDINATE = 1.0e7
 
 
 def _shown(value: object) -> object:

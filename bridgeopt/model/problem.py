@@ -11,10 +11,12 @@ intensity is positive downwards (gravity).
 from __future__ import annotations
 
 import math
+import numbers
 from dataclasses import dataclass
 
 
 from bridgeopt.errors import InputError
+from bridgeopt.model.limits import COORDINATE, FORCE, INTENSITY
 from bridgeopt.model.materials import Material
 from bridgeopt.model.plane import polygon_area
 
@@ -32,8 +34,8 @@ def _check_point(name: str, value: object) -> tuple[float, float]:
         x, z = (float(v) for v in value)  # type: ignore[union-attr]
     except (TypeError, ValueError):
         raise InputError(name, value, "a pair [x, z] of finite numbers in m") from None
-    if not (math.isfinite(x) and math.isfinite(z)):
-        raise InputError(name, value, "a pair [x, z] of finite numbers in m")
+    if not (abs(x) <= COORDINATE and abs(z) <= COORDINATE):
+        raise InputError(name, value, f"a pair [x, z] of finite numbers within +-{COORDINATE:g} m")
     return (x, z)
 
 
@@ -133,7 +135,14 @@ class PointLoad:
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "at", _check_point("load.at", self.at))
-        f = _check_point("load.force", self.force)
+        try:
+            f = tuple(float(v) for v in self.force)  # type: ignore[union-attr]
+        except (TypeError, ValueError):
+            f = ()
+        size = math.hypot(*f) if len(f) == 2 else math.nan
+        if not FORCE[0] <= size <= FORCE[1]:
+            raise InputError("load.force", self.force, f"a pair [fx, fz] in N of magnitude "
+                             f"{FORCE[0]:g} to {FORCE[1]:g} N")
         object.__setattr__(self, "force", f)
 
 
@@ -162,8 +171,12 @@ class LineLoad:
             s, e = e, s
         if not e[0] > s[0]:
             raise InputError("line_load.to", list(e), "a point with x different from 'from'")
-        if not (math.isfinite(self.intensity) and self.intensity != 0):
-            raise InputError("line_load.intensity", self.intensity, "a finite non-zero number in N/m")
+        w = self.intensity
+        if not (isinstance(w, numbers.Real) and not isinstance(w, bool)
+                and INTENSITY[0] <= abs(w) <= INTENSITY[1]):
+            raise InputError("line_load.intensity", w, f"a number in N/m of magnitude "
+                             f"{INTENSITY[0]:g} to {INTENSITY[1]:g} (positive downwards)")
+        object.__setattr__(self, "intensity", float(w))
         object.__setattr__(self, "start", s)
         object.__setattr__(self, "end", e)
 

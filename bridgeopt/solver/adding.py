@@ -31,12 +31,15 @@ References
 from __future__ import annotations
 
 import logging
+import numbers
 from dataclasses import dataclass
 from typing import Protocol
 
 import numpy as np
 
-__all__ = ["MemberModel", "AddingResult", "add_members", "proven_gap", "strongest"]
+from bridgeopt.errors import InputError
+
+__all__ = ["MemberModel", "AddingResult", "add_members", "proven_gap", "strongest", "check_options"]
 
 log = logging.getLogger(__name__)
 
@@ -174,3 +177,29 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     if member_adding and rounds >= max_rounds:
         log.warning("member adding stopped after %d rounds; proven gap %.2e", rounds, gap)
     return AddingResult(status, rounds, gap)
+
+
+def check_options(*, member_adding: object, batch: object, **flags: object) -> None:
+    """Check the solve options of a layout entry point, with the project's own error.
+
+    Parameters
+    ----------
+    member_adding : bool
+        Member adding on or off.
+    batch : int or None
+        Most members added per round. [-]
+    **flags : bool
+        Other on/off options, by name (``coarse_start=...``).
+
+    Raises
+    ------
+    InputError
+        Naming the option, its value and what it may be.
+    """
+    for name, value in {"member_adding": member_adding, **flags}.items():
+        if not isinstance(value, (bool, np.bool_)):
+            raise InputError(name, value, "True or False")
+    if batch is not None and (isinstance(batch, (bool, np.bool_))
+                              or not isinstance(batch, numbers.Integral) or batch < 1):
+        raise InputError("batch", batch, "None (automatic) or a whole number >= 1: the most "
+                         "members added per member-adding round")

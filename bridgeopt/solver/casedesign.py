@@ -18,6 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from bridgeopt.model.materials import GRAVITY
+from bridgeopt.solver.design import accepted
 
 __all__ = ["CaseDesign", "case_design"]
 
@@ -216,4 +217,5 @@ def case_design(study, grid, f: np.ndarray, data, out: dict, ref_len: float, ref
     weight = copies * float(design.member_weight().sum())
     worst = max(float(np.abs(design.residual(k)).max()) for k in range(K))
     stats = dict(design.stats, equilibrium_error=worst / ref_force)
+    accepted(design.volume, worst / ref_force, "several-case design")
     return dataclasses.replace(design, weight=weight, stats=stats)

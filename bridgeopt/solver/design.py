@@ -11,7 +11,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-__all__ = ["Members", "Design", "equilibrium_residual"]
+__all__ = ["Members", "Design", "equilibrium_residual", "accepted", "EQUILIBRIUM_TOL"]
+
+#: Largest out-of-balance force of a returned design, as a part of the applied load. [-]
+EQUILIBRIUM_TOL = 1e-6
 
 
 def _frozen(a) -> np.ndarray:
@@ -191,3 +194,35 @@ class Design:
                 f"{len(m)} members ({n_t} tension, {len(m) - n_t} compression), "
                 f"{len(self.nodes)} nodes; {self.stats.get('rounds', 0)} LP rounds, "
                 f"{self.stats.get('seconds', 0.0):.2f} s")
+
+
+def accepted(volume: float, equilibrium_error: float, what: str = "design") -> None:
+    """Refuse a solve whose result no engineer should see: no design is better than that.
+
+    Parameters
+    ----------
+    volume : float
+        Volume of the whole reported structure. [m3]
+    equilibrium_error : float
+        Largest out-of-balance force of the independent check, as a part of the
+        applied load. [-]
+    what : str
+        What was solved, for the message.
+
+    Raises
+    ------
+    SolveError
+        Status ``"numerical"``: the volume is not finite and positive, or the
+        design fails the independent equilibrium check by more than
+        :data:`EQUILIBRIUM_TOL`.
+    """
+    from bridgeopt.errors import SolveError
+
+    if not (np.isfinite(volume) and volume > 0):
+        raise SolveError("numerical", f"the {what} came out with a volume of {volume!r} m3, "
+                         "which no structure has: loads, strengths or sizes are far outside "
+                         "the ranges the solver resolves (docs/limits.md)")
+    if not (np.isfinite(equilibrium_error) and equilibrium_error <= EQUILIBRIUM_TOL):
+        raise SolveError("numerical", f"the {what} fails the independent equilibrium check "
+                         f"(out of balance by {equilibrium_error!r} of the applied load, more "
+                         f"than {EQUILIBRIUM_TOL:g}); it is not returned (docs/limits.md)")

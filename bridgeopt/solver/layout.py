@@ -15,7 +15,8 @@ import math
 
 import numpy as np
 
-from bridgeopt.solver.design import Design, Members, equilibrium_residual
+from bridgeopt.solver.adding import check_options
+from bridgeopt.solver.design import Design, Members, accepted, equilibrium_residual
 from bridgeopt.solver.elements import PHI_LIMIT, SENSES, centreline, sag
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.ground import Grid, build_grid, candidate_pairs
@@ -42,6 +43,19 @@ def _span_limit_message(problem: Problem, grid: Grid, a, b) -> str | None:
         return None
     return ("; ".join(parts) + " (equal-strength elements carrying their own weight), and the "
             "members that would have to are not generated")
+
+
+def _check_restraints(problem: Problem, f: np.ndarray, fixed: np.ndarray) -> None:
+    """Name the cause when no support can take the vertical (or horizontal) reaction."""
+    heavy = not problem.weightless
+    for axis, name in ((1, "z"), (0, "x")):
+        held = np.any(fixed % 2 == axis)
+        pushed = abs(float(f[:, axis].sum())) > 0 or (axis == 1 and heavy)
+        if pushed and not held:
+            raise SolveError("infeasible", f"no structure can carry the loads: no support (or "
+                             f"mirror line) holds the structure in {name}, and the loads"
+                             + (" and self-weight" if axis == 1 and heavy else "")
+                             + f" have a {name} component; fix {name} at one support at least")
 
 
 #: Grids at least twice this many cells across start from a coarser grid's duals.
@@ -141,6 +155,7 @@ def solve_layout_lp(problem: Problem, *, member_adding: bool = True, batch: int 
     grid = build_grid(problem)
     f = nodal_loads(problem, grid)
     fixed = restrained_rows(problem, grid)
+    _check_restraints(problem, f, fixed)
     a, b = candidate_pairs(problem, grid)
     data = scaled_lp_data(problem, grid.xz, a, b, f, fixed,
                           np.abs(grid.ij[b] - grid.ij[a]).max(axis=1), allowed)
@@ -191,6 +206,10 @@ def optimize_layout(problem: Problem, *, member_adding: bool = True,
     .. [2] M. Gilbert, A. Tyas (2003), Engineering Computations 20(8):1044-1064.
     .. [3] H.E. Fairclough et al. (2018), Proc. R. Soc. A 474:20170726.
     """
+    if not isinstance(problem, Problem):
+        raise InputError("problem", type(problem).__name__, "a bridgeopt Problem (for a bridge, "
+                         "BridgeScenario.to_problem())")
+    check_options(member_adding=member_adding, batch=batch, coarse_start=coarse_start)
     grid, f, data, sol, refs = solve_layout_lp(problem, member_adding=member_adding, batch=batch,
                                                coarse_start=coarse_start)
     if problem.domain.excluded and not problem.weightless:
@@ -295,6 +314,8 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
     weights = np.array([problem.density(s) for s in senses]) * GRAVITY * volume
     model_volume = float(volume.sum())
     duals = sol.duals.reshape(-1, 2)[used] * ref_len / ref_sigma
+    model_error = float(np.abs(resid).max() / ref_force)
+    accepted(problem.copies * model_volume, model_error)
     return Design(
         status="optimal",
         message=("proven optimum of the layout-optimization LP" if sol.gap == 0 else
@@ -305,4 +326,4 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
                "seconds": sol.seconds, "grid_nodes": grid.n, "gap": sol.gap,
                "lp_volume": problem.copies * sol.objective * ref_force * ref_len / ref_sigma},
         copies=problem.copies, model_volume=model_volume,
-        equilibrium_error=float(np.abs(resid).max() / ref_force), problem=problem)
+        equilibrium_error=model_error, problem=problem)

@@ -80,7 +80,7 @@ import numpy as np
 from bridgeopt.errors import SolveError
 from bridgeopt.model.loads import CaseStudy, UnitCosts
 from bridgeopt.model.materials import GRAVITY
-from bridgeopt.solver.adding import add_members
+from bridgeopt.solver.adding import check_options, add_members
 from bridgeopt.solver.casedesign import CaseDesign, case_design
 from bridgeopt.solver.ground import build_grid, candidate_pairs
 from bridgeopt.solver.elements import bar_factors
@@ -329,6 +329,7 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
        Structural and Multidisciplinary Optimization.
     .. [3] M. Gilbert, A. Tyas (2003), Engineering Computations 20(8):1044-1064.
     """
+    check_options(member_adding=member_adding, batch=batch)
     t0 = time.perf_counter()
     grid, f, data, (ref_len, ref_force, ref_sigma) = _data(study)
     K = len(study.cases)
