@@ -89,11 +89,27 @@ class _WarningLine(logging.Handler):
             self.handleError(record)
 
 
+class _ProgressLine(logging.Handler):
+    """Progress of a long solve as one line each on stderr: ``bridgeopt: progress: ...``."""
+
+    def emit(self, record: logging.LogRecord) -> None:
+        try:
+            print("bridgeopt: progress: " + " ".join(record.getMessage().split()),
+                  file=sys.stderr, flush=True)
+        except Exception:  # pragma: no cover - never let logging break a run
+            self.handleError(record)
+
+
 def _setup_logging() -> None:
     log = logging.getLogger("bridgeopt")
     if not any(isinstance(h, _WarningLine) for h in log.handlers):
         handler = _WarningLine(logging.WARNING)
         log.addHandler(handler)
+    progress = logging.getLogger("bridgeopt.progress")
+    if not any(isinstance(h, _ProgressLine) for h in progress.handlers):
+        progress.addHandler(_ProgressLine(logging.INFO))
+        progress.setLevel(logging.INFO)
+        progress.propagate = False
 
 
 def main(argv: list[str] | None = None) -> int:

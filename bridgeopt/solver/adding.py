@@ -32,6 +32,7 @@ from __future__ import annotations
 
 import logging
 import numbers
+import time
 from dataclasses import dataclass
 from typing import Protocol
 
@@ -42,6 +43,10 @@ from bridgeopt.errors import InputError
 __all__ = ["MemberModel", "AddingResult", "add_members", "proven_gap", "strongest", "check_options"]
 
 log = logging.getLogger(__name__)
+#: Progress of long solves (the command line shows it; a library user may).
+progress = logging.getLogger("bridgeopt.progress")
+#: Seconds after which each round is reported on the progress logger. [s]
+PROGRESS_AFTER = 3.0
 
 
 class MemberModel(Protocol):
@@ -146,6 +151,7 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     AddingResult
     """
     n_groups = model.in_lp.shape[1]
+    t0 = time.perf_counter()
     if member_adding and seed is not None:
         model.add(*_all_groups(seed, n_groups))
     level = 1 if member_adding else np.inf
@@ -171,6 +177,10 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
         if gap_tol is not None and gap <= gap_tol:
             break
         top = strongest(ratio, batch or max(1000, int(0.1 * model.in_lp.sum())))
+        if time.perf_counter() - t0 > PROGRESS_AFTER:
+            progress.info("member adding: round %d, %d members in the LP, %d more to add, "
+                          "proven gap %.1e, %.0f s", rounds, int(model.in_lp.sum()), len(top),
+                          gap, time.perf_counter() - t0)
         model.add(pair[top], group[top])
         rounds += 1
         status = model.solve()

@@ -16,6 +16,7 @@ import math
 import numpy as np
 
 from bridgeopt.solver.adding import check_options
+from bridgeopt.solver.budget import check_fits
 from bridgeopt.solver.design import Design, Members, accepted, equilibrium_residual
 from bridgeopt.solver.elements import PHI_LIMIT, SENSES, centreline, sag
 from bridgeopt.errors import InputError, SolveError
@@ -152,6 +153,7 @@ def solve_layout_lp(problem: Problem, *, member_adding: bool = True, batch: int 
     refs : (float, float, float)
         Reference length [m], force [N] and stress [Pa].
     """
+    check_fits(problem)  # before the grid and its candidates are built
     grid = build_grid(problem)
     f = nodal_loads(problem, grid)
     fixed = restrained_rows(problem, grid)

@@ -80,7 +80,8 @@ import numpy as np
 from bridgeopt.errors import SolveError
 from bridgeopt.model.loads import CaseStudy, UnitCosts
 from bridgeopt.model.materials import GRAVITY
-from bridgeopt.solver.adding import check_options, add_members
+from bridgeopt.solver.adding import add_members, check_options
+from bridgeopt.solver.budget import check_fits
 from bridgeopt.solver.casedesign import CaseDesign, case_design
 from bridgeopt.solver.ground import build_grid, candidate_pairs
 from bridgeopt.solver.elements import bar_factors
@@ -277,6 +278,7 @@ def price_cases(data: _Data, in_lp: np.ndarray, y: np.ndarray, tol: float = PRIC
 
 def _data(study: CaseStudy):
     problem = study.problem
+    check_fits(problem, copies_of_pairs=2)  # areas and forces per case: more per pair
     grid = build_grid(problem)
     fixed = restrained_rows(problem, grid)
     a, b = candidate_pairs(problem, grid)
