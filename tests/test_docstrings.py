@@ -25,41 +25,30 @@ import re
 
 import pytest
 
-MODULES = [
-    "bridgeopt.errors",
-    "bridgeopt.cautions",
-    "bridgeopt.model.materials",
-    "bridgeopt.model.plane",
-    "bridgeopt.model.problem",
-    "bridgeopt.model.loads",
-    "bridgeopt.model.bridge",
-    "bridgeopt.model.crossing",
-    "bridgeopt.forms.specs",
-    "bridgeopt.forms.builder",
-    "bridgeopt.forms.build",
-    "bridgeopt.forms.cable_stayed",
-    "bridgeopt.forms.suspension",
-    "bridgeopt.forms.arch",
-    "bridgeopt.files.io",
-    "bridgeopt.files.proposal",
-    "bridgeopt.files.design_json",
-    "bridgeopt.files.export",
-    "bridgeopt.files.drawing",
-    "bridgeopt.files.casereport",
-    "bridgeopt.sweep.expand",
-    "bridgeopt.sweep.run",
-    "bridgeopt.sweep.store",
-    "bridgeopt.cli.app",
-    "bridgeopt.cli.common",
-    "bridgeopt.cli.sweep",
-    "bridgeopt.cli.judge",
-    "bridgeopt.cli.report",
-    "bridgeopt.workbook.plots",
-    "bridgeopt.workbook.charts",
-    "bridgeopt.workbook.notebook",
-    "bridgeopt.workbook.explorer",
-    "bridgeopt.workbook.report",
-]
+def _every_module() -> list[str]:
+    """Every module of the package (the root and ``__main__`` have no functions of their own)."""
+    import pkgutil
+
+    import bridgeopt
+
+    return sorted(m.name for m in pkgutil.walk_packages(bridgeopt.__path__, "bridgeopt.")
+                  if not m.ispkg and not m.name.endswith("__main__"))
+
+
+#: Modules other branches are editing right now; their docstrings are brought up to the rule
+#: when those branches land (this set must end empty).
+PENDING = {"bridgeopt.files.scenario", "bridgeopt.files.sections", "bridgeopt.forms.registry",
+           "bridgeopt.forms.solve", "bridgeopt.study.options", "bridgeopt.study.solve",
+           "bridgeopt.study.trends", "bridgeopt.solver.lp", "bridgeopt.solver.budget",
+           "bridgeopt.cli.export", "bridgeopt.cli.solve", "bridgeopt.files.casefile",
+           "bridgeopt.files.fields", "bridgeopt.study.judge", "bridgeopt.sweep.cases",
+           "bridgeopt.geometry.moves", "bridgeopt.geometry.optimize",
+           "bridgeopt.geometry.sensitivity", "bridgeopt.geometry.topology",
+           "bridgeopt.solver.adding", "bridgeopt.solver.casedesign", "bridgeopt.solver.clearance",
+           "bridgeopt.solver.design", "bridgeopt.solver.elements", "bridgeopt.solver.frame",
+           "bridgeopt.solver.ground", "bridgeopt.solver.highs", "bridgeopt.solver.layout",
+           "bridgeopt.solver.lumping", "bridgeopt.solver.multicase"}
+MODULES = [m for m in _every_module() if m not in PENDING]
 
 SKIPPED = {"self", "cls"}
 NUMERIC = re.compile(r"\b(float|int|ndarray|array|array_like|number)s?\b")
