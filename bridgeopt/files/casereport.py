@@ -12,7 +12,7 @@ case), ``stats``, ``inputs``, ``units`` and the cautions.
 from __future__ import annotations
 
 from bridgeopt.cautions import CAUTION_LINES, CAUTIONS
-from bridgeopt.files.design_json import UNITS, _plain
+from bridgeopt.files.design_json import UNITS, plain_json
 from bridgeopt.model.materials import GRAVITY
 
 __all__ = ["CASES_SCHEMA", "format_case_summary", "case_design_to_dict"]
@@ -136,4 +136,4 @@ def case_design_to_dict(design, *, scenario=None, wall_seconds: float | None = N
         "units": dict(UNITS, area="m2", cost="currency of [cost]"),
         "cautions": list(CAUTION_LINES), "caution": CAUTIONS,
     }
-    return _plain(out)
+    return plain_json(out)

@@ -30,7 +30,8 @@ from bridgeopt.files.io import atomic_write
 from bridgeopt.model.materials import GRAVITY
 from bridgeopt.files.scenario import Scenario, problem_dict
 
-__all__ = ["SCHEMA", "UNITS", "design_to_dict", "scenario_inputs", "write_json", "to_json"]
+__all__ = ["SCHEMA", "UNITS", "design_to_dict", "scenario_inputs", "write_json", "to_json",
+           "plain_json"]
 
 #: Identifier of the JSON layout written here.
 SCHEMA = "bridgeopt.design/1"
@@ -43,14 +44,25 @@ UNITS = {
 }
 
 
-def _plain(value: Any) -> Any:
-    """``value`` with numpy types turned into Python ones and non-finite floats into None."""
+def plain_json(value: Any) -> Any:
+    """``value`` with numpy types turned into Python ones and non-finite floats into None.
+
+    Parameters
+    ----------
+    value : object
+        Numbers, strings, None, numpy scalars and arrays, in dicts, lists and tuples.
+
+    Returns
+    -------
+    object
+        The same structure, fit for strict JSON (no nan or infinity).
+    """
     if isinstance(value, dict):
-        return {str(k): _plain(v) for k, v in value.items()}
+        return {str(k): plain_json(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
-        return [_plain(v) for v in value]
+        return [plain_json(v) for v in value]
     if isinstance(value, np.ndarray):
-        return _plain(value.tolist())
+        return plain_json(value.tolist())
     if isinstance(value, (bool, np.bool_)):
         return bool(value)
     if isinstance(value, (int, np.integer)):
@@ -76,7 +88,7 @@ def scenario_inputs(scenario) -> dict:
     dict
         Its tables and keys as plain JSON values, in SI units (N, m, Pa, kg/m3).
     """
-    return _plain(scenario.to_dict())
+    return plain_json(scenario.to_dict())
 
 
 def _derived(problem, scenario) -> dict:
@@ -189,7 +201,7 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
                        "quantities": form.quantities,
                        "reference_stats": {} if form.reference is None else {
                            k: v for k, v in form.reference.stats.items() if k != "history"}}
-    return _plain(out)
+    return plain_json(out)
 
 
 def _version() -> str:
@@ -211,7 +223,7 @@ def to_json(data: dict) -> str:
     str
         One JSON document and a newline.
     """
-    return json.dumps(_plain(data), allow_nan=False) + "\n"
+    return json.dumps(plain_json(data), allow_nan=False) + "\n"
 
 
 def write_json(path: str | os.PathLike, data: dict) -> Path:
