@@ -22,35 +22,17 @@ import pytest
 from bridgeopt import InputError
 from bridgeopt.sweep import Journal, load_sweep, run_sweep
 from bridgeopt.sweep.run import check_scheduler
+from tests.sweep.test_sweep import SWEEP_TOML
 
 pytestmark = pytest.mark.slow
 
-SWEEP_TOML = """
-name = "Tollbury Narrows options"   # a fictional crossing
-
-[bridge]
-span = [SPANS]
-rise = 120.0
-depth = 40.0
-deck_load = 1.0e5
-divisions = [16, 20]
-
-[material]
-preset = "steel"
-
-[[form]]
-type = "reference"
-
-[[form]]
-type = "cable-stayed"
-pattern = ["fan", "harp"]
-"""
 
 
 def _sweep_file(tmp_path: Path, spans: int = 12) -> Path:
     path = tmp_path / "slow.toml"
-    path.write_text(SWEEP_TOML.replace("SPANS", ", ".join(str(400.0 + 20 * i)
-                                                          for i in range(spans))))
+    spans_text = ", ".join(str(400.0 + 20 * i) for i in range(spans))
+    path.write_text(SWEEP_TOML.replace("divisions = [8, 9]", "divisions = [16, 20]")
+                    .replace("span = [400.0, 600.0]", f"span = [{spans_text}]"))
     return path
 
 
