@@ -270,6 +270,9 @@ class Explorer:
         except Exception as err:  # shown, never raised from a report
             bridge = None
             display(HTML(message_html(error_text(err))))
+        if self.figure is None:
+            # nothing solved: a report whose body would only be this error is not written
+            raise SolveError("report", self.error or "nothing could be solved for these inputs")
         if bridge is not None:
             display(HTML(scenario_html(bridge)))
         if self.message.value:

@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import os
 import re
+import subprocess
 from pathlib import Path
 from typing import Mapping
 
@@ -128,7 +129,8 @@ def execute_notebook(path: str | os.PathLike, *, parameters: Mapping[str, object
     client = NotebookClient(nb, km=km, timeout=timeout, kernel_name="python3",
                             resources={"metadata": {"path": str(path.parent.resolve())}})
     try:
-        client.execute(env=env)
+        # the kernel's own log lines (transport warnings) are not the user's business
+        client.execute(env=env, stderr=subprocess.DEVNULL)
     except CellExecutionError as err:
         lines = [ln for ln in str(err).splitlines() if ln.strip()]
         raise SolveError("notebook", f"{path.name}: a cell failed: {lines[-1] if lines else err}") \
