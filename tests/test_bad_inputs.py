@@ -273,3 +273,15 @@ def test_a_design_failing_the_equilibrium_check_is_never_returned():
         with pytest.raises(SolveError) as err:
             accepted(volume, error)
         assert err.value.status == "numerical"
+
+
+@pytest.mark.parametrize("layout,field", [
+    ({"nodes": [{"id": 1, "x": 0.0}, [1.0, 1.0]], "members": [[0, 1]]}, "nodes[0].z"),
+    ({"nodes": [[0.0, 0.0], [1.0, 1.0]], "members": [{"start": 0}]}, "members[0].end"),
+])
+def test_a_missing_key_reads_missing_not_none(layout, field):
+    from bridgeopt.files.proposal import proposal_from_dict
+
+    with pytest.raises(InputError) as err:
+        proposal_from_dict(layout)
+    assert err.value.field == field and str(err.value).startswith(f"{field} = <missing> is")

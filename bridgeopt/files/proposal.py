@@ -28,6 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from bridgeopt.errors import InputError
+from bridgeopt.files.fields import MISSING, Shown
 from bridgeopt.files.io import read_input_bytes, read_json
 
 __all__ = ["Proposal", "read_proposal", "proposal_from_dict", "SENSES"]
@@ -76,7 +77,7 @@ class Proposal:
 
 
 def _id(value, field: str) -> str:
-    if isinstance(value, bool) or value is None:
+    if isinstance(value, (bool, Shown)) or value is None:
         raise InputError(field, value, "a node id (a whole number or text)")
     if isinstance(value, float):
         if not value.is_integer():
@@ -183,8 +184,8 @@ def proposal_from_dict(data, *, source: str = "<dict>") -> Proposal:
     for i, node in enumerate(data["nodes"]):
         field = f"nodes[{i}]"
         if isinstance(node, dict):
-            x = node.get("x", node.get("x_m"))
-            z = node.get("z", node.get("z_m"))
+            x = node.get("x", node.get("x_m", MISSING))
+            z = node.get("z", node.get("z_m", MISSING))
             ids.append(_id(node.get("id", i), f"{field}.id"))
         elif isinstance(node, (list, tuple)) and len(node) == 2:
             x, z = node
@@ -196,8 +197,9 @@ def proposal_from_dict(data, *, source: str = "<dict>") -> Proposal:
     for j, m in enumerate(data["members"]):
         field = f"members[{j}]"
         if isinstance(m, dict):
-            members.append((_id(m.get("start"), f"{field}.start"),
-                            _id(m.get("end"), f"{field}.end"), _text(m.get("group"), "member"),
+            members.append((_id(m.get("start", MISSING), f"{field}.start"),
+                            _id(m.get("end", MISSING), f"{field}.end"),
+                            _text(m.get("group"), "member"),
                             _text(m.get("sense"), "either"), field))
         elif isinstance(m, (list, tuple)) and len(m) == 2:
             members.append((_id(m[0], f"{field}.start"), _id(m[1], f"{field}.end"), "member",
