@@ -47,7 +47,15 @@ def run_export(args) -> int:
 
 
 def add_export(sub) -> None:
-    p = sub.add_parser("export", help="write a solved design as CSV, JSON, SVG and DXF",
+    """Add the ``export`` command to the command line.
+
+    Parameters
+    ----------
+    sub : argparse._SubParsersAction
+        The sub-command parsers of ``bridgeopt``.
+    """
+    p = sub.add_parser(
+"export", help="write a solved design as CSV, JSON, SVG and DXF",
                        description="Solve a scenario file (or read the JSON of a solve) and "
                                    "write members.csv, nodes.csv, design.json, design.svg and "
                                    "design.dxf (see docs/formats.md).")
