@@ -209,8 +209,7 @@ def add_check(sub) -> None:
     sub : argparse._SubParsersAction
         The sub-command parsers of ``bridgeopt``.
     """
-    p = sub.add_parser(
-"check", help="check a scenario file without solving",
+    p = sub.add_parser("check", help="check a scenario file without solving",
                        description="Read and check a TOML scenario file; print its inputs.")
     p.add_argument("file", metavar="FILE.toml", help="scenario file")
     p.set_defaults(func=run_check)

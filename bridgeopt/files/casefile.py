@@ -271,6 +271,5 @@ def cost_dict(costs: UnitCosts) -> dict:
     dict
         Keys ``tension``, ``compression``, ``basis`` (``"volume"``), ``currency``.
     """
-
     return {"tension": costs.tension, "compression": costs.compression, "basis": "volume",
             "currency": costs.currency}

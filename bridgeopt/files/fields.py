@@ -107,27 +107,29 @@ def is_number(value: object) -> bool:
     Parameters
     ----------
     value : object
-        A value read from a file.
+        Any value; nan, inf and ``True`` are not numbers here.
 
     Returns
     -------
     bool
+        Whether ``value`` is a finite real number.
     """
     return (isinstance(value, numbers.Real) and not isinstance(value, bool)
             and math.isfinite(value))
 
 
 def is_whole(value: object) -> bool:
-    """True for an int (not a bool).
+    """True for an int (not a bool): a count or an index, as a file gives it.
 
     Parameters
     ----------
     value : object
-        A value read from a file.
+        Any value; a float with no fraction (``3.0``) is not whole.
 
     Returns
     -------
     bool
+        Whether ``value`` is a Python or numpy integer.
     """
     return isinstance(value, numbers.Integral) and not isinstance(value, bool)
 
@@ -372,7 +374,6 @@ def entries(data: Mapping, key: str, build: Callable[[str, Mapping], object]) ->
     tuple
         The built entries, in file order (empty when the array is absent).
     """
-
     out = []
     for i, raw in enumerate(tables(key, data.get(key))):
         check_keys(raw, key, f"{key}[{i}]", f"[[{key}]]")

@@ -181,7 +181,6 @@ def keeps_rules(frame: Frame, nodes: np.ndarray, vertical: np.ndarray, ref_len: 
         False when a non-vertical member's reach falls below ``MIN_REACH * ref_len``,
         or a node or member leaves the domain or enters an excluded zone.
     """
-
     a, b = frame.start, frame.end
     lx = nodes[b, 0] - nodes[a, 0]
     if np.any(lx[~vertical] < MIN_REACH * ref_len):

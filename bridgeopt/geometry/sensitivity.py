@@ -153,7 +153,6 @@ def volume_gradient(problem: Problem, data: LPData, sol: LPSolution) -> np.ndarr
         Derivative of the dimensionless optimum volume by the dimensionless node
         coordinates, x and z interleaved. [-]
     """
-
     gc, G, R = linearise(problem, data, sol)
     u = sol.duals
     return gc - G.T @ u + R.T @ u

@@ -196,7 +196,6 @@ def simplify(design: Design, *, merge_tolerance: float,
         The merged, pruned and joined frame (every member free in sense), or None
         when no member is dropped, no nodes merge and none are joined.
     """
-
     frame = frame_from_design(design)
     roles = node_roles(frame)
     nodes = np.asarray(frame.nodes, dtype=float)

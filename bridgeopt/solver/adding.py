@@ -123,7 +123,6 @@ def strongest(ratio: np.ndarray, limit: int) -> np.ndarray:
     (min(m, limit),) int array
         Indices into ``ratio``, in no particular order. [-]
     """
-
     if len(ratio) <= limit:
         return np.arange(len(ratio))
     return np.argpartition(-ratio, limit)[:limit]

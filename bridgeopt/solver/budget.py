@@ -96,7 +96,6 @@ def available_bytes() -> float:
     float
         Bytes available; infinite when neither can be read. [B]
     """
-
     try:
         with open("/proc/meminfo", encoding="ascii") as fh:
             for line in fh:

@@ -194,7 +194,6 @@ def case_design(study, grid, f: np.ndarray, data, out: dict, ref_len: float, ref
     SolveError
         Status ``"numerical"`` when the volume or the equilibrium check is out of bounds.
     """
-
     area_d = out["area"]
     keep = area_d > 1e-9 * max(float(area_d.max()), 1e-300)
     pair, grp = out["pair"][keep], out["group"][keep]

@@ -87,7 +87,6 @@ def curves_entering_zones(problem, start: np.ndarray, end: np.ndarray, senses) -
     (m,) bool array
         True for a member whose centreline enters a zone.
     """
-
     zones = problem.domain.excluded
     out = np.zeros(len(start), dtype=bool)
     if not zones:

@@ -250,7 +250,6 @@ def sag(p, q, k: float, sense: str) -> float:
     float
         The sag, >= 0. [L]
     """
-
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)
     lx, dz = q[0] - p[0], q[1] - p[1]

@@ -332,7 +332,6 @@ def frame_from_design(design: Design, *, senses: str = "either") -> Frame:
     Frame
         On the design's nodes, with its members' groups.
     """
-
     m = design.members
     return Frame(problem=design.problem, nodes=np.array(design.nodes), start=np.array(m.start),
                  end=np.array(m.end), senses=np.full(len(m), senses),

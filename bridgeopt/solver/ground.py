@@ -159,7 +159,6 @@ def candidate_pairs(problem: Problem, grid: Grid) -> tuple[np.ndarray, np.ndarra
     a, b : (p,) int32 arrays
         End nodes of each candidate pair (indices into ``grid``). [-]
     """
-
     n = grid.n
     order = np.lexsort((grid.ij[:, 1], grid.ij[:, 0]))  # by i, then j
     ij = grid.ij[order]

@@ -313,7 +313,6 @@ def solve_columns(columns: ColumnSet, row_lower, row_upper, *, ipm: bool = False
     LPResult
         Its status, and the solution and duals when optimal.
     """
-
     mat = columns.matrix
     n_row, n_col = mat.shape
     lp = highspy.HighsLp()

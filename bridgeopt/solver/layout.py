@@ -292,7 +292,6 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
     Design
         Checked by :func:`bridgeopt.solver.design.accepted`.
     """
-
     n_members = len(sol.pair)
     a, b = data.a[sol.pair], data.b[sol.pair]
     start_f = np.zeros((n_members, 2))

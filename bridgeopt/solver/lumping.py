@@ -202,5 +202,4 @@ def restrained_rows(problem: Problem, grid: Grid) -> np.ndarray:
     (r,) int array
         Sorted row indices 2*node + (0 for x, 1 for z). [-]
     """
-    return restraint_rows(
-problem, grid.xz, grid.node_at, 1e-6 * max(grid.step))
+    return restraint_rows(problem, grid.xz, grid.node_at, 1e-6 * max(grid.step))

@@ -108,7 +108,6 @@ def solve_reference(data: dict) -> tuple[Design | None, str]:
     error : str
         Empty, or the exception's type and message.
     """
-
     try:
         return form_reference(parse_scenario(data)), ""
     except Exception as err:  # the forms then solve (and fail on) their own reference
