@@ -47,6 +47,13 @@ def run_export(args) -> int:
 
 
 def add_export(sub) -> None:
+    """Register ``bridgeopt export FILE -o DIR`` (solve or read a design, then write it).
+
+    Parameters
+    ----------
+    sub : argparse._SubParsersAction
+        What ``ArgumentParser.add_subparsers`` returned for ``bridgeopt``.
+    """
     p = sub.add_parser("export", help="write a solved design as CSV, JSON, SVG and DXF",
                        description="Solve a scenario file (or read the JSON of a solve) and "
                                    "write members.csv, nodes.csv, design.json, design.svg and "

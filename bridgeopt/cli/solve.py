@@ -22,7 +22,18 @@ __all__ = ["demo_path", "solve_design", "add_solve_options", "add_solve", "add_d
            "add_check"]
 
 def demo_path() -> Path:
-    """The bundled demo scenario (package data, or the repository's studies folder)."""
+    """The bundled demo scenario (package data, or the repository's studies folder).
+
+    Returns
+    -------
+    Path
+        ``bridgeopt/data/demo.toml`` when installed, else ``studies/scenarios/demo.toml``.
+
+    Raises
+    ------
+    InputError
+        Naming ``demo`` when neither file exists.
+    """
     try:
         data = resources.files("bridgeopt").joinpath("data", "demo.toml")
         if data.is_file():
@@ -46,6 +57,16 @@ def solve_design(scenario: Scenario, *, geometry_optimization: bool = False):
     geometry_optimization : bool
         ``--geometry-optimization``: rationalise the layout even when the file's
         ``[solve]`` does not ask for it.
+
+    Returns
+    -------
+    scenario : Scenario
+        The scenario as solved.
+    design : Design or CaseDesign
+        The design (a :class:`CaseDesign` for load cases or costs).
+    form : FormResult or None
+        The solved form set against its reference, for a ``[form]`` other than the
+        reference.
     """
     solved = solve_scenario(scenario, geometry_optimization=geometry_optimization or None)
     return solved.scenario, solved.design, solved.form
@@ -111,6 +132,13 @@ def report_cases(scenario: Scenario, design, out: Path | None, wall: float) -> i
 
 
 def add_solve_options(p: argparse.ArgumentParser) -> None:
+    """Add the options shared by ``solve`` and ``demo``.
+
+    Parameters
+    ----------
+    p : argparse.ArgumentParser
+        The command's parser.
+    """
     p.add_argument("--json", metavar="OUT.json",
                    help="also write the design as JSON (written atomically)")
     p.add_argument("--full-ground-structure", action="store_true",
@@ -129,6 +157,13 @@ def run_solve(args) -> int:
 
 
 def add_solve(sub) -> None:
+    """Add the ``solve`` command to the command line.
+
+    Parameters
+    ----------
+    sub : argparse._SubParsersAction
+        The sub-command parsers of ``bridgeopt``.
+    """
     p = sub.add_parser("solve", help="solve a scenario file and print a summary",
                        description="Solve a TOML scenario file (see docs/scenario.md) and print "
                                    "a summary with the cautions.")
@@ -143,6 +178,13 @@ def run_demo(args) -> int:
 
 
 def add_demo(sub) -> None:
+    """Add the ``demo`` command to the command line.
+
+    Parameters
+    ----------
+    sub : argparse._SubParsersAction
+        The sub-command parsers of ``bridgeopt``.
+    """
     p = sub.add_parser("demo", help="solve the bundled demo crossing",
                        description="Solve the bundled demo: a fictional single-span steel "
                                    "crossing (studies/scenarios/demo.toml).")
@@ -160,6 +202,13 @@ def run_check(args) -> int:
 
 
 def add_check(sub) -> None:
+    """Add the ``check`` command to the command line.
+
+    Parameters
+    ----------
+    sub : argparse._SubParsersAction
+        The sub-command parsers of ``bridgeopt``.
+    """
     p = sub.add_parser("check", help="check a scenario file without solving",
                        description="Read and check a TOML scenario file; print its inputs.")
     p.add_argument("file", metavar="FILE.toml", help="scenario file")

@@ -43,6 +43,16 @@ def layout_cases(data: Mapping) -> tuple[LoadCase, ...]:
     ----------
     data : mapping
         The whole file (point loads [N], line loads [N/m], points [m]).
+
+    Returns
+    -------
+    tuple of LoadCase
+        In file order (empty without ``[[load_case]]``).
+
+    Raises
+    ------
+    InputError
+        A bad key or value, a traffic key, a case without loads, or a repeated name.
     """
     out = []
     for i, raw in enumerate(tables("load_case", data.get("load_case"))):
@@ -77,6 +87,16 @@ def bridge_cases(data: Mapping, span: float) -> tuple[LoadCase, ...]:
         The whole file (intensities [N/m], extents [m]).
     span : float
         The bridge's span, the deck's length. [m]
+
+    Returns
+    -------
+    tuple of LoadCase
+        One traffic line load each, in file order.
+
+    Raises
+    ------
+    InputError
+        A bad key or value, or a repeated name.
     """
     out = []
     for i, raw in enumerate(tables("load_case", data.get("load_case"))):
@@ -119,6 +139,11 @@ def cost_table(data: Mapping, problem: Problem) -> UnitCosts | None:
         The whole file (prices per m3, or per tonne with ``basis = "mass"``).
     problem : Problem
         The problem priced (its densities [kg/m3] turn prices per tonne into per m3).
+
+    Returns
+    -------
+    UnitCosts or None
+        Prices per m3; None without a ``[cost]`` table.
     """
     if "cost" not in data:
         return None
@@ -147,6 +172,15 @@ def crossing_keys(raw: Mapping) -> tuple[tuple, tuple, tuple]:
     ----------
     raw : mapping
         The ``[bridge]`` table (pier x [m], anchorage points [m], channel outlines [m]).
+
+    Returns
+    -------
+    piers : tuple of float
+        Pier x-coordinates. [m]
+    anchorages : tuple of (float, float)
+        Anchorage points. [m]
+    channels : tuple of polygons
+        Channel outlines, each a tuple of (x, z) points. [m]
     """
     piers = raw.get("piers", [])
     if not isinstance(piers, (list, tuple)):
@@ -174,6 +208,12 @@ def check_cases_on_grid(problem: Problem, cases) -> None:
     problem : Problem
         The problem whose grid the loads must meet.
     cases : iterable of LoadCase
+        The cases to check (loads [N] at points [m]).
+
+    Raises
+    ------
+    InputError
+        Naming ``load_case[i].load...`` or ``load_case[i].line_load...``.
     """
     grid = build_grid(problem)
     for i, case in enumerate(cases):
@@ -196,6 +236,11 @@ def cases_dict(cases, *, bridge: bool) -> list[dict]:
         Loads [N], line loads [N/m], points [m].
     bridge : bool
         The cases of a bridge file (traffic on the deck).
+
+    Returns
+    -------
+    list of dict
+        One table per case, keys as ``docs/scenario.md``.
     """
     out = []
     for c in cases:
@@ -219,6 +264,12 @@ def cost_dict(costs: UnitCosts) -> dict:
     Parameters
     ----------
     costs : UnitCosts
+        The unit costs (per m3).
+
+    Returns
+    -------
+    dict
+        Keys ``tension``, ``compression``, ``basis`` (``"volume"``), ``currency``.
     """
     return {"tension": costs.tension, "compression": costs.compression, "basis": "volume",
             "currency": costs.currency}

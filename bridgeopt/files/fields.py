@@ -88,6 +88,12 @@ def short(value: object) -> object:
     ----------
     value : object
         A value read from a file.
+
+    Returns
+    -------
+    object
+        ``value`` itself, or a :class:`Shown` stand-in (``{...}`` for a table, the
+        first 72 characters of a long repr).
     """
     if isinstance(value, dict):
         return Shown("{...}")
@@ -96,13 +102,35 @@ def short(value: object) -> object:
 
 
 def is_number(value: object) -> bool:
-    """True for a finite int or float (not a bool)."""
+    """True for a finite int or float (not a bool).
+
+    Parameters
+    ----------
+    value : object
+        Any value; nan, inf and ``True`` are not numbers here.
+
+    Returns
+    -------
+    bool
+        Whether ``value`` is a finite real number.
+    """
     return (isinstance(value, numbers.Real) and not isinstance(value, bool)
             and math.isfinite(value))
 
 
 def is_whole(value: object) -> bool:
-    """True for an int (not a bool)."""
+    """True for an int (not a bool): a count or an index, as a file gives it.
+
+    Parameters
+    ----------
+    value : object
+        Any value; a float with no fraction (``3.0``) is not whole.
+
+    Returns
+    -------
+    bool
+        Whether ``value`` is a Python or numpy integer.
+    """
     return isinstance(value, numbers.Integral) and not isinstance(value, bool)
 
 
@@ -118,6 +146,16 @@ def number(field: str, value: object, valid: str,
         The valid range, with its unit (``"a number > 0 m"``).
     ok : callable, optional
         Further condition on the value.
+
+    Returns
+    -------
+    float
+        The value, in the unit ``valid`` names.
+
+    Raises
+    ------
+    InputError
+        Not a finite number, or ``ok`` fails.
     """
     if not is_number(value) or not ok(value):
         raise InputError(field, short(value), valid)
@@ -133,6 +171,11 @@ def string(field: str, value: object, valid: str = "a non-empty text string") ->
         The dotted key (named in the message) and the value read.
     valid : str, optional
         What is valid, for the message.
+
+    Returns
+    -------
+    str
+        The value, unchanged.
     """
     if not isinstance(value, str) or not value.strip():
         raise InputError(field, short(value), valid)
@@ -149,6 +192,11 @@ def point(field: str, value: object, valid: str = "a pair [x, z] of numbers in m
         The dotted key (named in the message) and the value read. [m]
     valid : str, optional
         What is valid, with its unit, for the message.
+
+    Returns
+    -------
+    (float, float)
+        The point (x, z). [m]
     """
     if (not isinstance(value, (list, tuple)) or len(value) != 2
             or not all(is_number(v) for v in value)):
@@ -163,6 +211,11 @@ def polygon(field: str, value: object) -> tuple[tuple[float, float], ...]:
     ----------
     field, value : str, object
         The dotted key (named in the message) and the points read, ``[[x, z], ...]``. [m]
+
+    Returns
+    -------
+    tuple of (float, float)
+        The vertices, without a repeated closing point. [m]
     """
     valid = "a list of at least 3 points [[x, z], ...] in m forming a simple polygon"
     if not isinstance(value, (list, tuple)) or len(value) < 3:
@@ -193,6 +246,11 @@ def table(field: str, value: object, what: str) -> Mapping:
         The dotted key (named in the message) and the value read.
     what : str
         The table expected, for the message.
+
+    Returns
+    -------
+    Mapping
+        The value, unchanged.
     """
     if not isinstance(value, Mapping):
         raise InputError(field, short(value), what)
@@ -206,6 +264,11 @@ def tables(field: str, value: object) -> list[Mapping]:
     ----------
     field, value : str, object
         The dotted key (named in the message) and the array read (None: absent).
+
+    Returns
+    -------
+    list of Mapping
+        The tables, or an empty list when absent.
     """
     if value is None:
         return []
@@ -255,8 +318,14 @@ def renamed(err: InputError, old: str, new: str) -> InputError:
     Parameters
     ----------
     err : InputError
+        The error raised with the old prefix.
     old, new : str
         Dotted key prefixes (``"load"`` -> ``"load_case[0].load"``).
+
+    Returns
+    -------
+    InputError
+        With the same value and valid range.
     """
     f = err.field
     if f == old or f.startswith(old + "."):
@@ -274,8 +343,14 @@ def required(where: str, raw: Mapping, key: str, valid: str) -> object:
     raw : mapping
         The table read.
     key : str
+        The key looked up.
     valid : str
         What is valid, for the message.
+
+    Returns
+    -------
+    object
+        The value read, unchecked.
     """
     if key not in raw:
         raise InputError(f"{where}.{key}", MISSING, f"{valid} (required)")
@@ -293,6 +368,11 @@ def entries(data: Mapping, key: str, build: Callable[[str, Mapping], object]) ->
         The array's key, also its :data:`KEYS` entry.
     build : callable
         ``build("key[i]", raw)`` -> the entry.
+
+    Returns
+    -------
+    tuple
+        The built entries, in file order (empty when the array is absent).
     """
     out = []
     for i, raw in enumerate(tables(key, data.get(key))):

@@ -87,6 +87,11 @@ def deck_homes(frame: Frame, roles: NodeRoles | None = None) -> np.ndarray:
         The frame (nodes [m], problem).
     roles : NodeRoles, optional
         Its node roles (default: :func:`~bridgeopt.geometry.topology.node_roles`).
+
+    Returns
+    -------
+    (d,) float array
+        Sorted x of the nodes whose z is fixed by a line load. [m]
     """
     roles = roles or node_roles(frame)
     return np.sort(np.asarray(frame.nodes)[roles.z_fixed, 0])
@@ -109,6 +114,11 @@ def default_moves(frame: Frame, roles: NodeRoles | None = None, *,
         Largest slide of a loaded deck node along its line. [grid steps]
     homes : float array, optional
         x of the deck nodes' starting places (default :func:`deck_homes`). [m]
+
+    Returns
+    -------
+    NodeMoves
+        One parameter per free coordinate (or group of coordinates moving together). [m]
     """
     roles = roles or node_roles(frame)
     homes = deck_homes(frame, roles) if homes is None else np.sort(np.asarray(homes, float))
@@ -164,6 +174,12 @@ def keeps_rules(frame: Frame, nodes: np.ndarray, vertical: np.ndarray, ref_len: 
         Members that are vertical (and stay so).
     ref_len : float
         Reference length of the problem. [m]
+
+    Returns
+    -------
+    bool
+        False when a non-vertical member's reach falls below ``MIN_REACH * ref_len``,
+        or a node or member leaves the domain or enters an excluded zone.
     """
     a, b = frame.start, frame.end
     lx = nodes[b, 0] - nodes[a, 0]

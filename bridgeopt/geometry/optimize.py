@@ -167,17 +167,18 @@ def optimize_geometry(start: Design | Frame, *, moves: NodeMoves | None = None,
         Merge close nodes, drop slack members and join pass-through members
         between rounds.  Default: True without ``moves``, False with.
     merge_tolerance : float, optional
-        Nodes closer than this merge. [m]  Default: a quarter of the problem's
-        grid spacing.
+        Nodes closer than this merge.  Default: a quarter of the problem's
+        grid spacing. [m]
     slack_tolerance : float
         Members whose end force is below this fraction of the largest are
         dropped. [-]
     max_rounds : int
-        Most move-and-merge rounds.
+        Most move-and-merge rounds. [-]
     deck_slide : float
         Largest slide of a loaded deck node along its line, in grid steps. [-]
     max_iterations : int
-        Most sequential-LP steps per round.
+        Most sequential-LP steps per round. [-]
+
 
     Returns
     -------

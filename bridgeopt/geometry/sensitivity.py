@@ -97,6 +97,15 @@ def linearise(problem: Problem, data: LPData, sol: LPSolution):
         The dimensionless LP at the current nodes.
     sol : LPSolution
         Its optimum.
+
+    Returns
+    -------
+    gc : (2n,) float array
+        ``q0 . dc/dX``, x and z interleaved (dimensionless). [-]
+    G : (2n, 2n) scipy.sparse.csr_matrix
+        ``d(A q0)/dX`` (dimensionless). [-]
+    R : (2n, 2n) scipy.sparse.csr_matrix
+        ``d(rhs)/dX`` of the lumped line loads (dimensionless). [-]
     """
     n2 = 2 * len(data.xz)
     gc = np.zeros(n2)
@@ -131,9 +140,18 @@ def volume_gradient(problem: Problem, data: LPData, sol: LPSolution) -> np.ndarr
 
     Parameters
     ----------
-    problem, data, sol
-        Problem, dimensionless LP and its optimum (forces and duals), as
-        :func:`linearise`.
+    problem : Problem
+        The frame's problem (line loads, scales).
+    data : LPData
+        The dimensionless LP at the current nodes.
+    sol : LPSolution
+        Its optimum (forces and duals).
+
+    Returns
+    -------
+    (2n,) float array
+        Derivative of the dimensionless optimum volume by the dimensionless node
+        coordinates, x and z interleaved. [-]
     """
     gc, G, R = linearise(problem, data, sol)
     u = sol.duals

@@ -34,7 +34,19 @@ __all__ = ["NodeRoles", "node_roles", "simplify", "groups"]
 
 @dataclass(frozen=True)
 class NodeRoles:
-    """What the rules hold of each node (boolean arrays, one entry per node)."""
+    """What the rules hold of each node (boolean arrays, one entry per node).
+
+    Parameters
+    ----------
+    pinned : (n,) bool array
+        A support, point load or line-load end is there: the node does not move.
+    x_fixed : (n,) bool array
+        Pinned, or on a mirror line: x does not move.
+    z_fixed : (n,) bool array
+        Pinned, or on a line load (slides along the deck): z does not move.
+    loaded : (n,) bool array
+        Carries an applied load or a restraint: never joined away.
+    """
 
     pinned: np.ndarray      # support, point load or line-load end: does not move
     x_fixed: np.ndarray     # pinned or on a mirror line
@@ -49,6 +61,11 @@ def node_roles(frame: Frame) -> NodeRoles:
     ----------
     frame : Frame
         Nodes [m] and the problem whose supports, loads and mirror lines give the roles.
+
+    Returns
+    -------
+    NodeRoles
+        One entry per node of the frame.
     """
     problem, nodes = frame.problem, np.asarray(frame.nodes)
     tol = position_tolerance(problem)
@@ -83,6 +100,11 @@ def groups(n: int, pairs: np.ndarray) -> np.ndarray:
         Number of nodes. [-]
     pairs : (m, 2) int array
         Linked node pairs. [-]
+
+    Returns
+    -------
+    (n,) int array
+        Connected-component label of each node, 0 to (components - 1). [-]
     """
     pairs = np.asarray(pairs, dtype=np.int64).reshape(-1, 2)
     graph = sparse.coo_matrix((np.ones(len(pairs)), (pairs[:, 0], pairs[:, 1])), shape=(n, n))
@@ -167,6 +189,12 @@ def simplify(design: Design, *, merge_tolerance: float,
     slack_tolerance : float
         Members whose largest end force is below this fraction of the largest
         in the design are dropped. [-]
+
+    Returns
+    -------
+    Frame or None
+        The merged, pruned and joined frame (every member free in sense), or None
+        when no member is dropped, no nodes merge and none are joined.
     """
     frame = frame_from_design(design)
     roles = node_roles(frame)

@@ -76,12 +76,12 @@ class MemberModel(Protocol):
 class AddingResult:
     """Outcome of :func:`add_members`.
 
-    Attributes
+    Parameters
     ----------
     status : str
         Status of the last solve.
     rounds : int
-        LP solves.
+        LP solves. [-]
     gap : float
         Proven relative optimality gap left (0 when no member violates the check). [-]
     """
@@ -98,6 +98,12 @@ def proven_gap(ratio_max: float) -> float:
     ----------
     ratio_max : float
         Largest ratio of virtual work to cost over the candidates. [-]
+
+    Returns
+    -------
+    float
+        ``max(0, 1 - 1/ratio_max)``: the optimum is at least the LP objective over
+        ``ratio_max``. [-]
     """
     return max(0.0, 1.0 - 1.0 / ratio_max)
 
@@ -111,6 +117,11 @@ def strongest(ratio: np.ndarray, limit: int) -> np.ndarray:
         Violation ratios work/cost. [-]
     limit : int
         Most indices returned. [-]
+
+    Returns
+    -------
+    (min(m, limit),) int array
+        Indices into ``ratio``, in no particular order. [-]
     """
     if len(ratio) <= limit:
         return np.arange(len(ratio))
@@ -144,7 +155,8 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
         Safety stop on LP solves. [-]
     seed : (s,) int array, optional
         Pairs to put in the first LP, in every group (e.g. predicted by a
-        coarser grid's duals).
+        coarser grid's duals). [-]
+
 
     Returns
     -------

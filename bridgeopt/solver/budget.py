@@ -63,6 +63,11 @@ def needed_bytes(pairs: int) -> float:
     ----------
     pairs : int
         Candidate pairs. [-]
+
+    Returns
+    -------
+    float
+        ``BASE_BYTES + BYTES_PER_CANDIDATE * pairs``. [B]
     """
     return BASE_BYTES + BYTES_PER_CANDIDATE * pairs
 
@@ -74,12 +79,23 @@ def expected_seconds(pairs: int) -> float:
     ----------
     pairs : int
         Candidate pairs. [-]
+
+    Returns
+    -------
+    float
+        Expected seconds, scaled from the measured time by ``TIME_EXPONENT``. [s]
     """
     return SECONDS_AT * (max(pairs, 1) / PAIRS_AT) ** TIME_EXPONENT
 
 
 def available_bytes() -> float:
-    """Memory this machine has available now (``MemAvailable``, else physical memory). [B]"""
+    """Memory this machine has available now (``MemAvailable``, else physical memory). [B]
+
+    Returns
+    -------
+    float
+        Bytes available; infinite when neither can be read. [B]
+    """
     try:
         with open("/proc/meminfo", encoding="ascii") as fh:
             for line in fh:

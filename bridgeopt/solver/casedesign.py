@@ -27,9 +27,10 @@ __all__ = ["CaseDesign", "case_design"]
 class CaseDesign:
     """A structure that carries every load case of a :class:`CaseStudy`.
 
-    Attributes
+    Parameters
     ----------
     status, message : str
+        ``"optimal"``, and what was proven.
     volume : float
         Material volume of the reported structure (``copies`` times the model). [m3]
     cost : float
@@ -37,21 +38,37 @@ class CaseDesign:
         volume when no costs are given. [currency or m3]
     weight : float
         Self-weight of the reported structure. [N]
-    nodes : (n, 2) float array [m]
-    start, end : (m,) int arrays: member ends (indices into ``nodes``).
-    group : (m,) str array: ``"member"``, or ``"tension"`` / ``"compression"``.
-    area : (m,) float array: cross-section area. [m2]
-    length : (m,) float array [m]
-    member_volume : (m,) float array [m3]
-    forces : (m, K) float array: axial force in each case, tension positive. [N]
-    governing : (m,) int array: the case with the largest |q|/(sigma a).
-    utilisation : (m, K) float array: |q| / (sigma a) per case. [-]
-    loads : (K, n, 2) float array: applied nodal loads per case (self-weight excluded). [N]
-    reactions : (K, r, 3) float array: rows (node, Rx, Rz) per case. [-, N, N]
+    nodes : (n, 2) float array
+        Node coordinates. [m]
+    start, end : (m,) int arrays
+        Member ends (indices into ``nodes``). [-]
+    group : (m,) str array
+        ``"member"``, or ``"tension"`` / ``"compression"``.
+    area : (m,) float array
+        Cross-section area. [m2]
+    length : (m,) float array
+        Chord length. [m]
+    member_volume : (m,) float array
+        Volume of each member of the model. [m3]
+    forces : (m, K) float array
+        Axial force in each case, tension positive. [N]
+    governing : (m,) int array
+        The case with the largest |q|/(sigma a). [-]
+    utilisation : (m, K) float array
+        |q| / (sigma a) per case. [-]
+    loads : (K, n, 2) float array
+        Applied nodal loads per case (self-weight excluded). [N]
+    reactions : (K, r, 3) float array
+        Rows (node, Rx, Rz) per case. [-, N, N]
     case_names : tuple of str
+        Names of the load cases, in order.
     stats : dict
+        ``rounds``, ``seconds``, ``columns``, ``candidates``, ``grid_nodes``,
+        ``lp_objective``, ``gap``, ``equilibrium_error``.
     copies : float
+        Number of copies of the model in the reported structure. [-]
     study : CaseStudy
+        The study solved (frozen).
     """
 
     status: str
@@ -157,7 +174,7 @@ def case_design(study, grid, f: np.ndarray, data, out: dict, ref_len: float, ref
         The LP optimum (areas, forces, reactions, duals) of
         :mod:`bridgeopt.solver.multicase`.
     ref_len, ref_force, ref_sigma : float
-        Reference length [m], force [N] and stress [Pa] of the dimensionless LP.
+        Reference length, force and stress of the dimensionless LP. [m, N, Pa]
     rounds : int
         Member-adding rounds. [-]
     seconds : float
@@ -166,6 +183,16 @@ def case_design(study, grid, f: np.ndarray, data, out: dict, ref_len: float, ref
         Members in the last LP. [-]
     gap : float
         Proven relative optimality gap. [-]
+
+    Returns
+    -------
+    CaseDesign
+        In SI units, checked by :func:`bridgeopt.solver.design.accepted`.
+
+    Raises
+    ------
+    SolveError
+        Status ``"numerical"`` when the volume or the equilibrium check is out of bounds.
     """
     area_d = out["area"]
     keep = area_d > 1e-9 * max(float(area_d.max()), 1e-300)

@@ -44,6 +44,11 @@ def enters_zones(curve: np.ndarray, zones, *, tol: float) -> bool:
         Polygons of the excluded zones. [m]
     tol : float
         Length tolerance. [m]
+
+    Returns
+    -------
+    bool
+        Whether a point is strictly inside, or a segment crosses an edge of, a zone.
     """
     curve = np.asarray(curve, dtype=float)
     p, q = curve[:-1], curve[1:]
@@ -76,6 +81,11 @@ def curves_entering_zones(problem, start: np.ndarray, end: np.ndarray, senses) -
         Member end points. [m]
     senses : (m,) str array
         ``"tension"`` or ``"compression"`` per member.
+
+    Returns
+    -------
+    (m,) bool array
+        True for a member whose centreline enters a zone.
     """
     zones = problem.domain.excluded
     out = np.zeros(len(start), dtype=bool)

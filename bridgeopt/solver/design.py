@@ -27,10 +27,10 @@ def _frozen(a) -> np.ndarray:
 class Members:
     """Members of a design, as parallel read-only arrays.
 
-    Attributes
+    Parameters
     ----------
     start, end : int arrays
-        Indices into :attr:`Design.nodes` (start is the left or lower end).
+        Indices into :attr:`Design.nodes` (start is the left or lower end). [-]
     sense : str array
         ``"tension"`` or ``"compression"``.
     horizontal_force : float array
@@ -91,6 +91,12 @@ def equilibrium_residual(nodes, members: Members, loads, reactions) -> np.ndarra
         Applied nodal loads. [N]
     reactions : (r, 3) float array
         Rows (node, Rx, Rz). [-, N, N]
+
+    Returns
+    -------
+    (n, 2) float array
+        Sum of member end forces, loads and reactions at each node (zero in
+        equilibrium). [N]
     """
     r = np.array(loads, dtype=float).reshape(-1, 2).copy()
     np.add.at(r, members.start, members.force_start)
@@ -104,11 +110,12 @@ def equilibrium_residual(nodes, members: Members, loads, reactions) -> np.ndarra
 class Design:
     """A solved layout.
 
-    Attributes
+    Parameters
     ----------
     status : str
         ``"optimal"``.
     message : str
+        What was proven (optimum, gap).
     volume : float
         Material volume of the reported structure (``copies`` times the model). [m3]
     weight : float
@@ -116,7 +123,9 @@ class Design:
     nodes : (n, 2) float array
         Coordinates of the nodes that carry members, loads or supports. [m]
     members : Members
+        The members, as parallel arrays.
     loads : (n, 2) float array
+
         Applied nodal loads (self-weight excluded). [N]
     reactions : (r, 3) float array
         Rows of (node, Rx, Rz). [-, N, N]

@@ -53,6 +53,7 @@ def curved_coefficients(lx, dz, k: float, sense: str):
     k : float
         rho*g/sigma of the element's material, >= 0. [1/L]
     sense : {"tension", "compression"}
+        A cable (tension) or an arch / strut (compression).
 
     Returns
     -------
@@ -92,6 +93,7 @@ def vertical_coefficients(h, k: float, sense: str):
     k : float
         rho*g/sigma, >= 0. [1/L]
     sense : {"tension", "compression"}
+        A cable (tension) or an arch / strut (compression).
 
     Returns
     -------
@@ -127,6 +129,7 @@ def element_coefficients(lx, dz, k: float, sense: str, vertical) -> tuple[np.nda
     k : float
         rho*g/sigma, >= 0. [1/L]
     sense : {"tension", "compression"}
+        A cable (tension) or an arch / strut (compression).
     vertical : (m,) bool array
         Which elements are vertical.
 
@@ -165,6 +168,11 @@ def bar_factors(unit: np.ndarray) -> np.ndarray:
     ----------
     unit : (m, 2) float array
         Unit vectors from P to Q. [-]
+
+    Returns
+    -------
+    (m, 4) float array
+        Force on P and on Q per unit tension q: (nx, nz, -nx, -nz). [-]
     """
     unit = np.asarray(unit, dtype=float)
     return np.column_stack([unit[:, 0], unit[:, 1], -unit[:, 0], -unit[:, 1]])
@@ -201,8 +209,14 @@ def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
     k : float
         rho*g/sigma, >= 0. [1/L]
     sense : {"tension", "compression"}
+        A cable (tension) or an arch / strut (compression).
     n : int
         Number of points on a curved centreline. [-]
+
+    Returns
+    -------
+    (n, 2) float array
+        Points from P to Q, or (2, 2) for a straight or vertical element. [L]
     """
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)
@@ -224,8 +238,17 @@ def sag(p, q, k: float, sense: str) -> float:
 
     Parameters
     ----------
-    p, q, k, sense
-        End points [L], rho*g/sigma [1/L] and sense, as :func:`centreline`.
+    p, q : (2,) float arrays
+        End points, P left of Q, as :func:`centreline`. [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+        A cable (sags below its chord) or an arch (rises above it).
+
+    Returns
+    -------
+    float
+        The sag, >= 0. [L]
     """
     p = np.asarray(p, dtype=float)
     q = np.asarray(q, dtype=float)

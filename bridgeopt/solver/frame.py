@@ -43,6 +43,11 @@ def position_tolerance(problem: Problem) -> float:
     ----------
     problem : Problem
         Its domain gives the reference length.
+
+    Returns
+    -------
+    float
+        A millionth of the reference length. [m]
     """
     return 1e-6 * scales(problem)[0]
 
@@ -68,6 +73,13 @@ def nodes_on_line_load(nodes: np.ndarray, q, tol: float) -> tuple[np.ndarray, np
         A horizontal line load.
     tol : float
         Distance within which a node lies on the load. [m]
+
+    Returns
+    -------
+    on : (k,) int array
+        Indices of the nodes on the load, in order of x. [-]
+    x : (k,) float array
+        Their x-coordinates, clipped to the load's extent. [m]
     """
     (xs, z), (xe, _) = q.start, q.end
     on = np.nonzero((np.abs(nodes[:, 1] - z) <= tol) & (nodes[:, 0] >= xs - tol)
@@ -85,6 +97,11 @@ def frame_loads(problem: Problem, nodes: np.ndarray) -> np.ndarray:
         Its point and line loads (a line load's two ends must be nodes).
     nodes : (n, 2) float array
         Node coordinates. [m]
+
+    Returns
+    -------
+    (n, 2) float array
+        Nodal loads (x, z), z upwards. [N]
 
     Raises
     ------
@@ -114,6 +131,11 @@ def frame_restraints(problem: Problem, nodes: np.ndarray) -> np.ndarray:
         Its supports (at nodes) and mirror lines.
     nodes : (n, 2) float array
         Node coordinates. [m]
+
+    Returns
+    -------
+    (r,) int array
+        Sorted equilibrium-row indices 2*node + (0 for x, 1 for z). [-]
     """
     nodes = np.asarray(nodes, dtype=float)
     tol = position_tolerance(problem)
@@ -132,7 +154,7 @@ class Frame:
         Node coordinates; they need not lie on a grid. [m]
     start, end : (m,) int arrays
         Member end nodes, in any order (stored left end first, or lower end
-        first for a vertical member).
+        first for a vertical member). [-]
     senses : (m,) str array, optional
         ``"tension"``, ``"compression"`` or ``"either"`` (default) per member.
     group : (m,) str array, optional
@@ -205,6 +227,7 @@ def frame_lp_data(frame: Frame) -> tuple[LPData, np.ndarray, tuple[float, float,
     Returns
     -------
     data : LPData
+        The dimensionless LP (nodes divided by the reference length).
     f : (n, 2) float array
         Lumped nodal loads. [N]
     refs : (float, float, float)
@@ -303,6 +326,11 @@ def frame_from_design(design: Design, *, senses: str = "either") -> Frame:
         A solved design with its problem.
     senses : {"either", "tension", "compression"}
         The sense every member may take.
+
+    Returns
+    -------
+    Frame
+        On the design's nodes, with its members' groups.
     """
     m = design.members
     return Frame(problem=design.problem, nodes=np.array(design.nodes), start=np.array(m.start),

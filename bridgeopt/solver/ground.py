@@ -28,12 +28,12 @@ PAIR_CHUNK = 2_000_000
 class Grid:
     """Grid nodes of a problem.
 
-    Attributes
+    Parameters
     ----------
     xz : ndarray, shape (n, 2)
         Node coordinates. [m]
     ij : ndarray, shape (n, 2), int
-        Lattice indices of the nodes.
+        Lattice indices of the nodes. [-]
     step : (float, float)
         Lattice spacing in x and z. [m]
     origin : (float, float)
@@ -77,6 +77,16 @@ def build_grid(problem: Problem) -> Grid:
     ----------
     problem : Problem
         Its domain and spacing. [m]
+
+    Returns
+    -------
+    Grid
+        The kept lattice nodes (at least 2).
+
+    Raises
+    ------
+    InputError
+        Naming ``domain.spacing`` when fewer than 2 nodes fall in the domain.
     """
     x0, x1, z0, z1 = problem.domain.bounds
     nx, nz = problem.grid_shape()
@@ -106,6 +116,12 @@ def members_clear_of_zones(problem: Problem, grid: Grid, a: np.ndarray, b: np.nd
         Node coordinates. [m]
     a, b : (m,) int arrays
         Member end nodes. [-]
+
+    Returns
+    -------
+    (m,) bool array
+        True for a member that crosses no edge of the outline or of a zone and
+        whose midpoint is in the domain and out of every zone.
     """
     p, q = grid.xz[a], grid.xz[b]
     ok = np.ones(len(a), dtype=bool)
@@ -137,6 +153,11 @@ def candidate_pairs(problem: Problem, grid: Grid) -> tuple[np.ndarray, np.ndarra
         Its domain (members leaving it are skipped).
     grid : Grid
         The lattice nodes. [m]
+
+    Returns
+    -------
+    a, b : (p,) int32 arrays
+        End nodes of each candidate pair (indices into ``grid``). [-]
     """
     n = grid.n
     order = np.lexsort((grid.ij[:, 1], grid.ij[:, 0]))  # by i, then j

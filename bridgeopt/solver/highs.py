@@ -76,6 +76,11 @@ def node_rows(a: np.ndarray, b: np.ndarray) -> np.ndarray:
     ----------
     a, b : (m,) int arrays
         Member end nodes; node i has rows 2i (x) and 2i + 1 (z). [-]
+
+    Returns
+    -------
+    (m, 4) int array
+        Columns 2a, 2a + 1, 2b, 2b + 1. [-]
     """
     a, b = np.asarray(a), np.asarray(b)
     return np.column_stack([2 * a, 2 * a + 1, 2 * b, 2 * b + 1])
@@ -97,6 +102,11 @@ def entry_columns(cost, rows: np.ndarray, vals: np.ndarray, n_rows: int, *,
         Rows of the LP. [-]
     lower, upper : float or (m,) array
         Column bounds. [-]
+
+    Returns
+    -------
+    ColumnSet
+        m columns over ``n_rows`` rows.
     """
     cost = np.asarray(cost, dtype=float)
     m = len(cost)
@@ -122,6 +132,11 @@ def triplet_columns(rows, cols, vals, *, shape: tuple[int, int], cost, lower=0.0
         Column costs. [-]
     lower, upper : float or (m,) array
         Column bounds. [-]
+
+    Returns
+    -------
+    ColumnSet
+        ``shape[1]`` columns over ``shape[0]`` rows.
     """
     vals = np.asarray(vals, dtype=float)
     keep = vals != 0.0
@@ -147,6 +162,11 @@ def unit_columns(rows, n_rows: int, *, cost=0.0, lower=-INF, upper=INF,
         Column bounds (default free). [-]
     value : float
         The entry. [-]
+
+    Returns
+    -------
+    ColumnSet
+        m columns over ``n_rows`` rows.
     """
     rows = np.asarray(rows, dtype=np.int32)
     m = len(rows)
@@ -156,7 +176,18 @@ def unit_columns(rows, n_rows: int, *, cost=0.0, lower=-INF, upper=INF,
 
 
 def stack_columns(*sets: ColumnSet) -> ColumnSet:
-    """The column sets side by side, in order."""
+    """The column sets side by side, in order.
+
+    Parameters
+    ----------
+    *sets : ColumnSet
+        Column sets over the same rows.
+
+    Returns
+    -------
+    ColumnSet
+        Their columns, first set first.
+    """
     return ColumnSet(np.concatenate([s.cost for s in sets]),
                      np.concatenate([s.lower for s in sets]),
                      np.concatenate([s.upper for s in sets]),
@@ -175,6 +206,11 @@ def new_highs(*, ipm: bool, crossover: bool = False,
         With ``ipm``, cross over to a vertex (exact duals, clean forces).
     tolerance : float
         Primal and dual feasibility tolerance. [-]
+
+    Returns
+    -------
+    highspy.Highs
+        With output off and the method and tolerances set.
     """
     fd = os.dup(1)
     try:
@@ -219,6 +255,12 @@ def model_status(h: highspy.Highs) -> str:
     ----------
     h : highspy.Highs
         A HiGHS instance after ``run()``.
+
+    Returns
+    -------
+    str
+        ``"optimal"``, ``"infeasible"`` (also for unbounded-or-infeasible) or
+        HiGHS's status string.
     """
     status = h.getModelStatus()
     if status == highspy.HighsModelStatus.kOptimal:
@@ -233,7 +275,7 @@ def model_status(h: highspy.Highs) -> str:
 class LPResult:
     """Outcome of :func:`solve_columns`.
 
-    Attributes
+    Parameters
     ----------
     status : str
         As :func:`model_status`.
@@ -265,6 +307,11 @@ def solve_columns(columns: ColumnSet, row_lower, row_upper, *, ipm: bool = False
         Method, as :func:`new_highs`.
     tolerance : float
         Feasibility tolerance, as :func:`new_highs`. [-]
+
+    Returns
+    -------
+    LPResult
+        Its status, and the solution and duals when optimal.
     """
     mat = columns.matrix
     n_row, n_col = mat.shape

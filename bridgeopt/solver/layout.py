@@ -94,6 +94,12 @@ def scales(problem: Problem) -> tuple[float, float, float]:
     ----------
     problem : Problem
         Its domain, loads and tension strength.
+
+    Returns
+    -------
+    (float, float, float)
+        Largest side of the domain's bounding box [m], total applied load [N] and
+        tension design stress [Pa].
     """
     x0, x1, z0, z1 = problem.domain.bounds
     return max(x1 - x0, z1 - z0), problem.total_applied_load(), problem.strength("tension")
@@ -120,6 +126,11 @@ def scaled_lp_data(problem: Problem, xz: np.ndarray, a: np.ndarray, b: np.ndarra
         Lattice reach of each pair (member adding starts from 1). [-]
     allowed : (m, 2) bool array, optional
         Senses each pair may take. [-]
+
+    Returns
+    -------
+    LPData
+        Nodes, loads and k in the LP's reference units; cost scales per sense. [-]
     """
     ref_len, ref_force, ref_sigma = scales(problem)
     x0, _, z0, _ = problem.domain.bounds
@@ -181,11 +192,12 @@ def optimize_layout(problem: Problem, *, member_adding: bool = True,
     Parameters
     ----------
     problem : Problem
+        Domain, supports, loads, materials and grid spacing.
     member_adding : bool
         Use member adding (default); False solves the full ground structure in
         one LP (same optimum; for checks and benchmarks).
     batch : int, optional
-        Most members added per member-adding round.
+        Most members added per member-adding round. [-]
     coarse_start : bool
         On fine grids, seed member adding with the members that the duals of a
         grid twice as coarse predict to be active (fewer rounds; same optimum).
@@ -193,6 +205,7 @@ def optimize_layout(problem: Problem, *, member_adding: bool = True,
     Returns
     -------
     Design
+        The proven optimum, in SI units.
 
     Raises
     ------
@@ -270,9 +283,14 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
     f : (n, 2) float array
         Lumped nodal loads. [N]
     ref_len, ref_force, ref_sigma : float
-        Reference length [m], force [N] and stress [Pa] of the LP.
+        Reference length, force and stress of the LP. [m, N, Pa]
     group : (m,) str array, optional
         Element-group label of each active member (default ``"member"``).
+
+    Returns
+    -------
+    Design
+        Checked by :func:`bridgeopt.solver.design.accepted`.
     """
     n_members = len(sol.pair)
     a, b = data.a[sol.pair], data.b[sol.pair]

@@ -63,9 +63,15 @@ def line_load_shares(x: np.ndarray, start: float | None = None,
 
     Parameters
     ----------
-    x, start, end
-        Node positions along the line and the load's ends [m], as
-        :func:`interval_shares`.
+    x : (p,) float array
+        Sorted node positions along the line, as :func:`interval_shares`. [m]
+    start, end : float, optional
+        Ends of the load (default: the first and last node). [m]
+
+    Returns
+    -------
+    (p,) float array
+        Length of unit load taken by each node; they sum to ``end - start``. [m]
     """
     share0, share1 = interval_shares(x, start, end)
     share = np.zeros(len(share0) + 1)
@@ -89,6 +95,11 @@ def lump_loads(problem: Problem, n: int, node_of, line_nodes) -> np.ndarray:
     line_nodes : callable
         ``line_nodes(i, line_load) -> (nodes, x)``: the nodes on line load i,
         sorted along it, and their positions along it [m].
+
+    Returns
+    -------
+    (n, 2) float array
+        Nodal loads (x, z), z upwards; line loads act downwards. [N]
     """
     f = np.zeros((n, 2))
     for i, load in enumerate(problem.loads):
@@ -114,6 +125,17 @@ def nodal_loads(problem: Problem, grid: Grid) -> np.ndarray:
         Loads and line loads to lump.
     grid : Grid
         The ground structure's nodes. [m]
+
+    Returns
+    -------
+    (n, 2) float array
+        Nodal loads (x, z) at the grid's nodes. [N]
+
+    Raises
+    ------
+    InputError
+        A point load is not at a grid node, or a line load does not run along
+        grid nodes.
     """
     tol = 1e-6 * max(grid.step)
 
@@ -146,6 +168,11 @@ def restraint_rows(problem: Problem, xz: np.ndarray, node_of, tol: float) -> np.
         ``node_of(point, field) -> int``: the node at a support.
     tol : float
         Distance within which a node lies on a mirror line. [m]
+
+    Returns
+    -------
+    (r,) int array
+        Sorted row indices 2*node + (0 for x, 1 for z). [-]
     """
     rows = set()
     for i, s in enumerate(problem.supports):
@@ -169,5 +196,10 @@ def restrained_rows(problem: Problem, grid: Grid) -> np.ndarray:
         Its supports and mirror lines.
     grid : Grid
         The ground structure's nodes. [m]
+
+    Returns
+    -------
+    (r,) int array
+        Sorted row indices 2*node + (0 for x, 1 for z). [-]
     """
     return restraint_rows(problem, grid.xz, grid.node_at, 1e-6 * max(grid.step))

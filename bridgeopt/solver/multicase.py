@@ -305,16 +305,18 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
     Parameters
     ----------
     study : CaseStudy
+        The problem, its load cases and (optionally) unit costs.
     member_adding : bool
         Add members by the dual check of the module docstring (default); False
         solves the whole ground structure in one LP (at most
         :data:`MAX_FULL_COLUMNS` columns).
     batch : int, optional
-        Most members added per round (default max(1000, 10 % of those in the LP)).
+        Most members added per round (default max(1000, 10 % of those in the LP)). [-]
 
     Returns
     -------
     CaseDesign
+        In SI units, members sized by their governing case.
 
     Raises
     ------
@@ -362,9 +364,11 @@ def single_case_reference(study: CaseStudy, case: int | None = None):
     Parameters
     ----------
     study : CaseStudy
+        The problem and its load cases.
     case : int, optional
         Which case (default: the one with the largest total applied load, the
-        first on a tie).
+        first on a tie). [-]
+
 
     Returns
     -------

@@ -57,7 +57,19 @@ log = logging.getLogger(__name__)
 
 
 def judge_problem(scenario) -> Problem:
-    """The problem a proposal is judged on: a bridge form's problem, else the scenario's."""
+    """The problem a proposal is judged on: a bridge form's problem, else the scenario's.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The scenario read (a bridge with a ``[form]``, or any other).
+
+    Returns
+    -------
+    Problem
+        :func:`~bridgeopt.forms.form_problem` of the bridge and form, else
+        ``scenario.problem``.
+    """
     if scenario.bridge is not None and scenario.form is not None:
         from bridgeopt.forms import form_problem
 
@@ -194,9 +206,10 @@ def unbalanced_nodes(problem: Problem, proposal: Proposal) -> list[int]:
 class Judgement:
     """A proposed layout sized by the LP and set against the reference optimum.
 
-    Attributes
+    Parameters
     ----------
     proposal : Proposal
+        The proposed layout as read (nodes [m], members, the user's node ids).
     design : Design
         The proposal's members sized by the LP (members that carry no force are
         left out).
@@ -204,7 +217,8 @@ class Judgement:
         The reference optimum on the same problem.
     volume : float
         Volume of the sized proposal (whole structure). [m3]
-    reference_volume : float [m3]
+    reference_volume : float
+        Volume of the reference optimum (whole structure). [m3]
     ratio : float
         volume / reference_volume. [-]
     excess : pandas.DataFrame
@@ -213,7 +227,7 @@ class Judgement:
         ``sense``, ``volume_m3``, ``excess_m3`` (see the module docstring; whole
         structure), ``share`` of the total excess.
     unused : tuple of int
-        Proposal members (indices) that carry no force.
+        Proposal members (indices) that carry no force. [-]
     """
 
     proposal: Proposal
@@ -226,7 +240,13 @@ class Judgement:
     unused: tuple
 
     def summary(self, top: int = 5) -> str:
-        """A few lines for the engineer, ending with the cautions."""
+        """A few lines for the engineer, ending with the cautions.
+
+        Parameters
+        ----------
+        top : int
+            Most members listed among those carrying the excess. [-]
+        """
         lines = [f"proposed layout ({self.proposal.source}): {len(self.proposal.start)} members, "
                  f"{len(self.design.members)} carrying force",
                  f"  proposal volume      {self.volume:.6g} m3",
@@ -261,10 +281,13 @@ def judge_proposal(problem: Problem, proposal: Proposal) -> Judgement:
         The scenario's problem (:func:`judge_problem`); supports where the
         proposal has no node are not used by the proposal.
     proposal : Proposal
+        Nodes [m] and members of the proposed layout.
 
     Returns
     -------
     Judgement
+        The sized proposal, the reference optimum and the excess per member.
+
 
     Raises
     ------

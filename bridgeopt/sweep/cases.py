@@ -43,7 +43,22 @@ STATUSES = CASE_STATUSES
 
 
 def error_row(status: str, message: str, seconds: float = 0.0) -> dict[str, Any]:
-    """The result columns of a bad case."""
+    """The result columns of a bad case.
+
+    Parameters
+    ----------
+    status : str
+        One of :data:`STATUSES` (not ``"ok"``).
+    message : str
+        The error message (whitespace runs become single spaces).
+    seconds : float
+        Wall time spent on the case before it failed. [s]
+
+    Returns
+    -------
+    dict
+        :data:`RESULT_COLUMNS`, the numeric ones nan.
+    """
     return {"status": status, "error": " ".join(str(message).split()), "volume_m3": math.nan,
             "reference_volume_m3": math.nan, "ratio": math.nan, "weight_N": math.nan,
             "normalised_volume": math.nan, "members": math.nan, "seconds": seconds}
@@ -56,6 +71,19 @@ def reference_group(scenario: Scenario):
     the layout optimum of :func:`~bridgeopt.forms.form_problem` (its supports
     included) with the same solve options; a reference case provides it.
     Layout scenarios are their own reference: ``(None, True)``.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The case, parsed.
+
+    Returns
+    -------
+    key : tuple or None
+        (form problem, geometry_optimization, member_adding), or None for a layout
+        scenario or a load-case study.
+    is_reference : bool
+        Whether the case is the group's reference itself.
     """
     if scenario.bridge is None or scenario.study is not None:
         return None, True
@@ -66,7 +94,20 @@ def reference_group(scenario: Scenario):
 
 
 def solve_reference(data: dict) -> tuple[Design | None, str]:
-    """The reference optimum of a case's form problem (shared by a group); (design, error)."""
+    """The reference optimum of a case's form problem (shared by a group); (design, error).
+
+    Parameters
+    ----------
+    data : dict
+        A case of the group, in the scenario-file schema.
+
+    Returns
+    -------
+    design : Design or None
+        The reference optimum, or None when it could not be solved.
+    error : str
+        Empty, or the exception's type and message.
+    """
     try:
         return form_reference(parse_scenario(data)), ""
     except Exception as err:  # the forms then solve (and fail on) their own reference
