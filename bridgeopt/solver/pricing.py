@@ -125,9 +125,19 @@ def _build(data) -> Lattice | None:
 
 
 def lattice_of(data) -> Lattice | None:
-    """The offset table of ``data`` (an :class:`~bridgeopt.solver.lp.LPData`), or None.
+    """The offset table of an LP's candidates, or None if they are not on a uniform lattice.
 
     Built once per LPData object and kept while the object lives.
+
+    Parameters
+    ----------
+    data : LPData
+        Dimensionless LP data (:class:`bridgeopt.solver.lp.LPData`): node
+        coordinates ``xz`` [-] and candidate ends ``a``, ``b``.
+
+    Returns
+    -------
+    Lattice or None
     """
     key = id(data)
     hit = _TABLES.get(key)
@@ -139,7 +149,13 @@ def lattice_of(data) -> Lattice | None:
 
 
 def on_lattice(data) -> bool:
-    """Whether ``data``'s candidates can be priced from a table of lattice offsets."""
+    """Whether an LP's candidates can be priced from a table of lattice offsets.
+
+    Parameters
+    ----------
+    data : LPData
+        Dimensionless LP data (:class:`bridgeopt.solver.lp.LPData`).
+    """
     return lattice_of(data) is not None
 
 
