@@ -107,21 +107,26 @@ def _build(data) -> Lattice | None:
     if np.any(di < 0) or np.any((di == 0) & (dj <= 0)):
         return None
     pad = int(np.abs(dj).max())
-    order = np.argsort(di, kind="stable")
-    starts = np.searchsorted(di[order], np.arange(shape[0] + 1))
-    groups, size = [], 0
-    for d in range(shape[0]):
-        sel = order[starts[d]:starts[d + 1]]
-        if len(sel) == 0:
-            continue
-        djs, col = np.unique(dj[sel], return_inverse=True)
-        size += (shape[0] - d) * len(djs) * shape[1]
-        if size > TABLE_PER_PAIR * n_pairs + 10_000:
-            return None
-        table = np.full((shape[0] - d, len(djs), shape[1]), -1, dtype=np.int32)
-        table[ij[a[sel], 0], col, ij[a[sel], 1]] = sel
-        groups.append((d, djs, table))
-    return Lattice(step=(ix[1], iz[1]), shape=shape, ij=ij, pad=pad, groups=tuple(groups))
+    # every pair's place in one flat table, group by group (di), each (i, dj column, j)
+    ni, nj = shape
+    code = di * (2 * pad + 1) + (dj + pad)               # offset number
+    present = np.zeros((ni, 2 * pad + 1), dtype=bool)
+    present.ravel()[code] = True
+    ndj = present.sum(axis=1)
+    sizes = (ni - np.arange(ni)) * ndj * nj
+    if sizes.sum() > TABLE_PER_PAIR * n_pairs + 10_000:
+        return None
+    first = np.concatenate([[0], np.cumsum(sizes)[:-1]])
+    # per offset: place of its (i, j) = (0, 0) entry and stride in i
+    base = (first[:, None] + (np.cumsum(present, axis=1) - 1) * nj).ravel()
+    stride = np.repeat(ndj * nj, 2 * pad + 1)
+    at = base[code] + ij[a, 0] * stride[code] + ij[a, 1]
+    flat = np.full(int(sizes.sum()), -1, dtype=np.int32)
+    flat[at] = np.arange(n_pairs, dtype=np.int32)
+    groups = tuple((d, np.flatnonzero(present[d]) - pad,
+                    flat[first[d]:first[d] + sizes[d]].reshape(ni - d, ndj[d], nj))
+                   for d in range(ni) if ndj[d])
+    return Lattice(step=(ix[1], iz[1]), shape=shape, ij=ij, pad=pad, groups=groups)
 
 
 def lattice_of(data) -> Lattice | None:
