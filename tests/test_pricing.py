@@ -100,7 +100,7 @@ def test_offset_pricing_equals_general_pricing(case):
     for trial in range(3):
         u = _duals(data, rng) * (1.0 + trial)
         want = _general(data, u, 1.0 + TOL, in_lp)
-        got = price_offsets(data, in_lp, u, tol=TOL, chunk=1000)
+        got = price_offsets(data, in_lp, u, tol=TOL, chunk=1000, entries=column_entries)
         assert want, "the check needs some violated columns"
         pair, sense, ratio = got
         assert len(pair) == len(want)
@@ -115,7 +115,8 @@ def test_offset_pricing_equals_general_pricing(case):
 def test_no_violated_column_gives_none():
     data = _lp_data(_bridge(8))
     in_lp = np.zeros((len(data.a), 2), dtype=bool)
-    assert price_offsets(data, in_lp, np.zeros(2 * len(data.xz)), tol=TOL, chunk=1000) is None
+    u = np.zeros(2 * len(data.xz))
+    assert price_offsets(data, in_lp, u, tol=TOL, chunk=1000, entries=column_entries) is None
 
 
 def test_prediction_equals_general_prediction():
@@ -125,12 +126,12 @@ def test_prediction_equals_general_prediction():
     u = _duals(data, rng)
     none = np.zeros((len(data.a), 2), dtype=bool)
     want = _general(data, u, 0.98, none, use_allowed=False)
-    got = predict_offsets(data, u, 10 ** 9, ratio=0.98, chunk=1000)
+    got = predict_offsets(data, u, 10 ** 9, ratio=0.98, chunk=1000, entries=column_entries)
     assert len(want) > 20
     np.testing.assert_array_equal(got, np.unique([p for p, _ in want]))
     limit = len(want) // 3
     top = sorted(want, key=want.get, reverse=True)[:limit]
-    got = predict_offsets(data, u, limit, ratio=0.98, chunk=1000)
+    got = predict_offsets(data, u, limit, ratio=0.98, chunk=1000, entries=column_entries)
     np.testing.assert_array_equal(got, np.unique([p for p, _ in top]))
 
 
@@ -180,12 +181,23 @@ def test_member_adding_optimum_equals_full_ground_structure(make):
     assert fast.stats["columns"] < full.stats["columns"]
 
 
-def test_driver_gives_the_same_solve_as_the_general_path(monkeypatch):
-    """With the coarse-grid start (48 divisions): same optimum, rounds and columns as when
-    every LP is priced by the general path."""
+def _michell_half(divisions):
+    """Weightless half model of a point load between two pins: many near-tied ratios u.a/c."""
+    w = Material("weightless", 1.0, 1.0, 0.0)
+    return Problem(domain=Domain.rectangle((0.0, 0.5), (0.0, 0.5)), spacing=1.0 / divisions,
+                   material=w, supports=(Support((0.0, 0.0), "xz"),),
+                   loads=(PointLoad((0.5, 0.0), (0.0, -0.5)),), mirror_lines=(0.5,),
+                   copies=2.0)
+
+
+@pytest.mark.parametrize("make", [lambda: _bridge(48), lambda: _michell_half(40)],
+                         ids=["48 divisions, coarse start", "weightless, near-ties"])
+def test_driver_gives_the_same_solve_as_the_general_path(monkeypatch, make):
+    """Same optimum, rounds and columns as when every LP is priced by the general path (the
+    coarse-grid start included; near-tied ratios ranked the same)."""
     import bridgeopt.solver.lp as lp
 
-    problem = _bridge(48)
+    problem = make()
     fast = optimize_layout(problem)
     monkeypatch.setattr(lp, "on_lattice", lambda data: False)
     general = optimize_layout(problem)

@@ -43,6 +43,10 @@ LATTICE_TOL = 1e-9
 #: this many entries per candidate pair.
 BOX_PER_NODE = 4
 TABLE_PER_PAIR = 4
+#: The offset table finds columns this much (relative) below the threshold too; their
+#: ratios are then recomputed by the general path (offset and per-position
+#: coefficients differ by rounding only, about 1e-15).
+HAIR = 1e-9
 
 
 @dataclass(frozen=True)
@@ -271,11 +275,32 @@ def _ordered(found, chunk: int):
     return pair[order], sense[order], ratio[order]
 
 
-def price_offsets(data, in_lp: np.ndarray, u: np.ndarray, *, tol: float, chunk: int):
+def _exact(data, found, u: np.ndarray, entries):
+    """Work u.a and cost of the columns ``found``, recomputed by the general path's ``entries``.
+
+    Member adding ranks the columns by u.a/c, and fine grids have many near-ties
+    (ratios equal to 1e-15): ratios that differ in the last bits from the
+    general path's break them otherwise, which sends HiGHS down another (valid)
+    path.  Recomputing the few columns found keeps the solve the same.
+    """
+    pair, sense, _ = found
+    work, cost = np.empty(len(pair)), np.empty(len(pair))
+    for s, name in enumerate(SENSES):
+        sel = sense == s
+        if sel.any():
+            cost[sel], rows, vals = entries(data, pair[sel], name)
+            work[sel] = np.einsum("ij,ij->i", u[rows], vals)
+    return work, cost
+
+
+def price_offsets(data, in_lp: np.ndarray, u: np.ndarray, *, tol: float, chunk: int,
+                  entries):
     """Violated columns of a lattice LP as (pair, sense, ratio u.a/c), or None.
 
-    The same columns, in the same order (by chunk of ``chunk`` pairs, then
-    sense, then pair) as the general pricing of :mod:`bridgeopt.solver.lp`.
+    The same columns, ratios and order (by chunk of ``chunk`` pairs, then
+    sense, then pair) as the general pricing of :mod:`bridgeopt.solver.lp`: the
+    offset table finds the columns within a hair of the threshold, and their
+    work and cost are recomputed by ``entries`` and tested as there.
 
     Parameters
     ----------
@@ -289,18 +314,30 @@ def price_offsets(data, in_lp: np.ndarray, u: np.ndarray, *, tol: float, chunk: 
         Relative violation for a column to enter. [-]
     chunk : int
         Pairs per chunk of the general pricing (sets the order). [-]
+    entries : callable
+        ``entries(data, pair, sense) -> (cost, rows, vals)`` of the general path
+        (:func:`bridgeopt.solver.lp.column_entries`).
     """
-    return _ordered(_ratios(data, lattice_of(data), np.asarray(u, dtype=float), tol, in_lp,
-                            True), chunk)
+    u = np.asarray(u, dtype=float)
+    found = _ordered(_ratios(data, lattice_of(data), u, tol - HAIR, in_lp, True), chunk)
+    if found is None:
+        return None
+    work, cost = _exact(data, found, u, entries)
+    with np.errstate(invalid="ignore"):
+        bad = work > cost * (1.0 + tol)
+    if not bad.any():
+        return None
+    return found[0][bad], found[1][bad], work[bad] / cost[bad]
 
 
-def predict_offsets(data, guess: np.ndarray, limit: int, *, ratio: float,
-                    chunk: int) -> np.ndarray:
+def predict_offsets(data, guess: np.ndarray, limit: int, *, ratio: float, chunk: int,
+                    entries) -> np.ndarray:
     """Pairs predicted active by a guess of the duals, on a lattice LP.
 
     The pairs whose u.a/c exceeds ``ratio`` in either sense, the ``limit`` with
-    the largest ratios if more, as sorted unique pair indices (as the general
-    prediction of :mod:`bridgeopt.solver.lp`).
+    the largest ratios if more, as sorted unique pair indices: the same as the
+    general prediction of :mod:`bridgeopt.solver.lp` (ratios recomputed as in
+    :func:`price_offsets`).
 
     Parameters
     ----------
@@ -314,12 +351,19 @@ def predict_offsets(data, guess: np.ndarray, limit: int, *, ratio: float,
         Least u.a/c of a pick. [-]
     chunk : int
         Pairs per chunk of the general prediction (sets the order of ties). [-]
+    entries : callable
+        The general path's column entries, as in :func:`price_offsets`.
     """
-    found = _ordered(_ratios(data, lattice_of(data), np.asarray(guess, dtype=float),
-                             ratio - 1.0, None, False), chunk)
+    guess = np.asarray(guess, dtype=float)
+    found = _ordered(_ratios(data, lattice_of(data), guess, ratio - 1.0 - HAIR, None, False),
+                     chunk)
     if found is None:
         return np.zeros(0, dtype=np.int64)
-    pair, _, r = found
+    work, cost = _exact(data, found, guess, entries)
+    with np.errstate(invalid="ignore"):
+        r = work / cost
+    near = r > ratio
+    pair, r = found[0][near], r[near]
     if len(pair) > limit:
         pair = pair[np.argpartition(-r, limit)[:limit]]
     return np.unique(pair)
