@@ -32,12 +32,10 @@ import sys
 
 CASE = r"""
 import json, resource, sys, time
-import highspy
 import numpy as np
-import bridgeopt
 from bridgeopt import BridgeScenario, PRESETS, optimize_layout
 from bridgeopt.solver import lp, pricing
-from bridgeopt.solver.elements import SENSES
+from bridgeopt.solver.highs import add_columns, new_highs, unit_columns
 
 n, full, methods = int(sys.argv[1]), sys.argv[2] == "full", sys.argv[3] == "methods"
 sc = BridgeScenario(span=1000.0, rise=500.0, depth=0.0, deck_load=2e5,
@@ -64,29 +62,15 @@ peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
 
 
 def alone(data, in_lp, solver):
-    # seconds of h.run() on the final member set, and its objective
-    h = highspy.Highs()
-    h.setOptionValue("output_flag", False)
-    h.setOptionValue("solver", solver)
-    if solver == "ipm":
-        h.setOptionValue("run_crossover", "off")
-    h.setOptionValue("primal_feasibility_tolerance", 1e-9)
-    h.setOptionValue("dual_feasibility_tolerance", 1e-9)
-    m = 2 * len(data.xz)
+    # seconds of h.run() on the final member set, with the driver's HiGHS options
+    h = new_highs(ipm=solver == "ipm")
+    n2 = 2 * len(data.xz)
     rhs = -np.asarray(data.load, dtype=float)
-    h.addRows(m, rhs, rhs, 0, np.zeros(m, dtype=np.int32), np.zeros(0, dtype=np.int32),
+    h.addRows(n2, rhs, rhs, 0, np.zeros(n2, dtype=np.int32), np.zeros(0, dtype=np.int32),
               np.zeros(0))
-    nfix = len(data.fixed)
-    h.addCols(nfix, np.zeros(nfix), np.full(nfix, -highspy.kHighsInf),
-              np.full(nfix, highspy.kHighsInf), nfix, np.arange(nfix, dtype=np.int32),
-              np.asarray(data.fixed, dtype=np.int32), np.ones(nfix))
-    for s, sense in enumerate(SENSES):
-        pair = np.nonzero(in_lp[:, s])[0]
-        cost, rows, vals = lp.column_entries(data, pair, sense)
-        nz = vals != 0.0
-        starts = np.concatenate([[0], np.cumsum(nz.sum(axis=1))[:-1]]).astype(np.int32)
-        h.addCols(len(pair), cost, np.zeros(len(pair)), np.full(len(pair), highspy.kHighsInf),
-                  int(nz.sum()), starts, rows[nz].astype(np.int32), vals[nz])
+    add_columns(h, unit_columns(data.fixed, n2))
+    for s in range(2):
+        add_columns(h, lp.lp_columns(data, np.nonzero(in_lp[:, s])[0], s)[1])
     t = time.perf_counter()
     h.run()
     return time.perf_counter() - t, h.getInfo().objective_function_value
