@@ -53,20 +53,20 @@ HAIR = 1e-9
 class Lattice:
     """Offset table of an LP's candidate pairs on a uniform lattice.
 
-    Attributes
+    Parameters
     ----------
     step : (float, float)
-        Lattice spacing in x and z, in the LP's (dimensionless) length unit.
+        Lattice spacing in x and z, in the LP's length unit (dimensionless). [-]
     shape : (int, int)
-        Lattice positions along x and z.
-    ij : (n, 2) int
-        Lattice indices of the nodes.
+        Lattice positions along x and z. [-]
+    ij : (n, 2) int array
+        Lattice indices of the nodes. [-]
     pad : int
-        Largest |dj| of any pair: width of the NaN padding of the dual grid.
+        Largest |dj| of any pair: width of the NaN padding of the dual grid. [-]
     groups : tuple of (di, dj, table)
-        One per distinct di: the distinct dj (sorted, int) of its pairs and an
-        int32 table of shape (shape[0] - di, len(dj), shape[1]) holding, at
-        [i, c, j], the pair from node (i, j) to (i + di, j + dj[c]), or -1.
+        One per distinct di: the distinct dj (sorted) of its pairs and an int32
+        table of shape (shape[0] - di, len(dj), shape[1]) holding, at [i, c, j],
+        the pair from node (i, j) to (i + di, j + dj[c]), or -1.
     """
 
     step: tuple[float, float]
@@ -164,6 +164,11 @@ def on_lattice(data) -> bool:
     ----------
     data : LPData
         Dimensionless LP data (:class:`bridgeopt.solver.lp.LPData`).
+
+    Returns
+    -------
+    bool
+        True when :func:`lattice_of` finds an offset table.
     """
     return lattice_of(data) is not None
 
@@ -317,6 +322,12 @@ def price_offsets(data, in_lp: np.ndarray, u: np.ndarray, *, tol: float, chunk: 
     entries : callable
         ``entries(data, pair, sense) -> (cost, rows, vals)`` of the general path
         (:func:`bridgeopt.solver.lp.column_entries`).
+
+    Returns
+    -------
+    (pair, sense, ratio) or None
+        Candidate index, sense (0 tension, 1 compression) and u.a/c of every
+        violated column; None when there is none.
     """
     u = np.asarray(u, dtype=float)
     found = _ordered(_ratios(data, lattice_of(data), u, tol - HAIR, in_lp, True), chunk)
@@ -353,6 +364,11 @@ def predict_offsets(data, guess: np.ndarray, limit: int, *, ratio: float, chunk:
         Pairs per chunk of the general prediction (sets the order of ties). [-]
     entries : callable
         The general path's column entries, as in :func:`price_offsets`.
+
+    Returns
+    -------
+    ndarray of int
+        Sorted unique candidate indices.
     """
     guess = np.asarray(guess, dtype=float)
     found = _ordered(_ratios(data, lattice_of(data), guess, ratio - 1.0 - HAIR, None, False),
