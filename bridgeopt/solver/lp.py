@@ -33,6 +33,7 @@ from bridgeopt.solver.adding import add_members
 from bridgeopt.solver.elements import SENSES, element_coefficients
 from bridgeopt.solver.highs import (add_columns, entry_columns, model_status, new_highs,
                                     node_rows, raise_for_status, unit_columns)
+from bridgeopt.solver.pricing import on_lattice, predict_offsets, price_offsets
 
 __all__ = ["LPData", "LPSolution", "solve_lp", "column_entries", "price_candidates",
            "predicted_pairs", "lp_columns", "PRICE_TOL", "PRICE_CHUNK"]
@@ -183,6 +184,9 @@ def price_candidates(data: LPData, in_lp: np.ndarray, duals: np.ndarray):
         Every column out of the LP whose virtual work u.a exceeds its cost c by
         more than :data:`PRICE_TOL`, with ratio u.a/c; None when there is none.
     """
+    if on_lattice(data):  # the same columns from a table of lattice offsets
+        return price_offsets(data, in_lp, duals, tol=PRICE_TOL, chunk=PRICE_CHUNK,
+                             entries=column_entries)
     n_pairs = len(data.a)
     found = []
     for start in range(0, n_pairs, PRICE_CHUNK):
@@ -217,6 +221,9 @@ def predicted_pairs(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
     limit : int
         Most pairs returned (those of largest ratio u.a/c). [-]
     """
+    if on_lattice(data):  # the same pairs from a table of lattice offsets
+        return predict_offsets(data, guess, limit, ratio=PREDICT_RATIO, chunk=PRICE_CHUNK,
+                               entries=column_entries)
     picks, ratios = [], []
     for start in range(0, len(data.a), PRICE_CHUNK):
         pair = np.arange(start, min(len(data.a), start + PRICE_CHUNK))
