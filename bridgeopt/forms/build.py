@@ -26,6 +26,7 @@ weight.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from typing import Mapping
 
@@ -43,7 +44,7 @@ from bridgeopt.forms.cable_stayed import cable_stayed_frame
 from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
 from bridgeopt.forms.suspension import suspension_frame
 
-__all__ = ["form_problem", "extra_piers", "crossing_label", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
+__all__ = ["form_problem", "form_crossing", "extra_piers", "crossing_label", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
            "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag"]
 
 #: Least clearance between deck and cable or crown, as a part of the available height. [-]
@@ -64,7 +65,7 @@ def _pylon_positions(bridge: BridgeScenario, pylons: int) -> list[float]:
 
 
 def extra_piers(bridge: BridgeScenario, spec: FormSpec) -> int:
-    """Intermediate piers per span that ``spec`` adds to the crossing (0: its own supports).
+    """Intermediate piers per span that ``spec`` adds to the crossing (0: none).
 
     Parameters
     ----------
@@ -81,15 +82,56 @@ def extra_piers(bridge: BridgeScenario, spec: FormSpec) -> int:
     return spec.pylons - 1 if isinstance(spec, CableStayedForm) else 0
 
 
-def crossing_label(piers: int) -> str:
-    """Name of a crossing with ``piers`` intermediate piers per span (``""`` for none).
+def form_crossing(bridge: BridgeScenario, spec: FormSpec) -> BridgeScenario:
+    """The crossing ``spec`` stands on: ``bridge``, or it with the foundations a form needs.
+
+    A deck arch on repeating spans springs from the pier foundations at the
+    bottom of the envelope, so its crossing has them there whatever
+    ``bridge.foundation_depth`` says (named by :func:`crossing_label`).
 
     Parameters
     ----------
-    piers : int
-        Intermediate piers per span. [-]
+    bridge : BridgeScenario
+        The crossing as given.
+    spec : FormSpec
+        The form.
+
+    Returns
+    -------
+    BridgeScenario
     """
-    return "" if piers <= 0 else f"{piers} pier" + ("s" if piers > 1 else "")
+    if isinstance(spec, ArchForm) and spec.variant == "deck-arch" \
+            and bridge.arrangement == "repeating" and bridge.depth_cells:
+        depth = bridge.depth_cells * bridge.spacing
+        if abs(bridge.foundation_level + depth) > 1e-9 * bridge.spacing:
+            return dataclasses.replace(bridge, foundation_depth=depth)
+    return bridge
+
+
+def crossing_label(bridge: BridgeScenario, spec: FormSpec) -> str:
+    """How the crossing of ``spec`` differs from ``bridge`` (``""``: the same supports).
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing as given.
+    spec : FormSpec
+        The form.
+
+    Returns
+    -------
+    str
+        ``"3 piers"`` (intermediate piers per span), ``"foundations 60 m below the
+        deck"``, both joined by ", ", or ``""``.
+    """
+    parts = []
+    n = extra_piers(bridge, spec)
+    if n > 0:
+        parts.append(f"{n} pier" + ("s" if n > 1 else ""))
+    own = form_crossing(bridge, spec)
+    if own is not bridge:
+        parts.append(f"foundations {-own.foundation_level:g} m below the deck")
+    return ", ".join(parts)
 
 
 def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
@@ -115,8 +157,7 @@ def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
     InputError
         Intermediate pylons that do not stand on grid nodes (``form.pylons``
         must divide ``bridge.divisions``); a single-span cable-stayed or
-        suspension form without back spans; a deck arch on repeating spans whose
-        springing is not at the pier foundation.
+        suspension form without back spans.
     """
     piers: list[float] = []
     if isinstance(spec, CableStayedForm) and spec.pylons > 1:
@@ -131,15 +172,7 @@ def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
                          f">= one grid step ({bridge.spacing:.6g} m) and a rise above the deck "
                          f"for a single-span {spec.type} form (the back stays or the main "
                          "cable's back span need the anchor points at the end of the back span)")
-    if isinstance(spec, ArchForm) and spec.variant == "deck-arch" \
-            and bridge.arrangement == "repeating" and bridge.depth_cells \
-            and abs(bridge.foundation_level + bridge.depth_cells * bridge.spacing) \
-            > 1e-9 * bridge.spacing:
-        raise InputError("bridge.foundation_depth", bridge.foundation_depth,
-                         f"{bridge.depth_cells * bridge.spacing:g} m, the depth allowed below "
-                         "the deck in whole grid steps, for a deck arch on repeating spans "
-                         "(its springing stands on the pier foundation)")
-    return bridge.to_problem(piers=piers)
+    return form_crossing(bridge, spec).to_problem(piers=piers)
 
 
 def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
