@@ -41,7 +41,7 @@ from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_sc
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
            "unregister_form", "available_forms", "solve_reference", "solve_option",
            "solve_options", "compare", "quantities", "STATUSES", "comparison_table",
-           "comparison_rows", "inputs_table", "bridge_from_file"]
+           "comparison_rows", "inputs_table", "bridge_from_file", "crossing_name"]
 
 
 @dataclass(frozen=True)
@@ -164,6 +164,9 @@ def inputs_table(bridge: BridgeScenario):
             ("span", bridge.span, "m"),
             ("rise allowed above deck", bridge.rise, "m"),
             ("depth allowed below deck", bridge.depth, "m"),
+            ("pier foundations below deck", -bridge.foundation_level, "m"),
+            *((("back span behind each abutment", bridge.back_length, "m"),)
+              if bridge.arrangement == "single" else ()),
             ("deck load", bridge.deck_load / 1e3, "kN/m"),
             ("material", m.name, ""),
             ("tension design stress", m.tension_strength / 1e6, "MPa"),
@@ -184,6 +187,52 @@ def _reference_volume_on(problem) -> float:
         return math.nan
 
 
+def crossing_name(problem, plain) -> str:
+    """How the supports of ``problem`` differ from those of the crossing's ``plain`` problem.
+
+    Parameters
+    ----------
+    problem : Problem
+        The problem an option was solved on.
+    plain : Problem
+        The crossing's own problem (its reference optimum's).
+
+    Returns
+    -------
+    str
+        ``""`` for the same supports; ``"3 piers"`` for intermediate piers (per
+        span, counted over the whole span of a half model); ``"own supports"``
+        for any other difference.
+    """
+    if problem is None or plain is None or (problem.supports, problem.mirror_lines) == \
+            (plain.supports, plain.mirror_lines):
+        return ""
+    mirrors = set(plain.mirror_lines)
+    extra = [s for s in problem.supports if s not in plain.supports]
+    lost = [s for s in plain.supports if s not in problem.supports]
+    x0 = plain.line_loads[0].start[0] if plain.line_loads else 0.0
+    inner = [s for s in extra if s.at[0] > x0 and s.fix == "z"]
+    if lost or len(inner) != len(extra) or set(problem.mirror_lines) != mirrors:
+        return "own supports"
+    copies = max(1, round(problem.copies))
+    n = sum(1 if s.at[0] in mirrors else copies for s in inner)
+    return f"{n} pier" + ("s" if n != 1 else "")
+
+
+def _split(design) -> dict:
+    """Volumes by part: tension and compression elements, and the pier shafts. [m3]"""
+    if design is None:
+        return {"tension_volume_m3": math.nan, "compression_volume_m3": math.nan,
+                "pier_volume_m3": math.nan}
+    m = design.members
+    vol = np.asarray(m.volume, dtype=float) * design.copies
+    sense = np.asarray(m.sense, dtype=str)
+    group = np.asarray(m.group, dtype=str)
+    return {"tension_volume_m3": float(vol[sense == "tension"].sum()),
+            "compression_volume_m3": float(vol[sense != "tension"].sum()),
+            "pier_volume_m3": float(vol[group == "pier"].sum())}
+
+
 def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> list[dict]:
     """The rows of :func:`compare`'s table for already solved options.
 
@@ -201,21 +250,20 @@ def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> li
     for name, opt in results.items():
         d = opt.design
         volume = d.volume if d is not None else math.nan
-        # a form standing on piers the plain reference lacks is set against the optimum
-        # with the same supports, so that the ratio stays a fair one (>= 1)
-        fair = ref_volume
+        # a form standing on piers the plain reference lacks is its own crossing, set
+        # against the optimum with the same supports, so that the ratio stays a fair one
+        fair, crossing = ref_volume, ""
         if d is not None and name != REFERENCE and ref_problem is not None:
-            held = (getattr(d.problem, "supports", ref_problem.supports),
-                    getattr(d.problem, "mirror_lines", ref_problem.mirror_lines))
-            if held != (ref_problem.supports, ref_problem.mirror_lines):
-                fair = _reference_volume_on(dataclasses.replace(
-                    ref_problem, supports=held[0], mirror_lines=held[1]))
+            crossing = crossing_name(getattr(d, "problem", None), ref_problem)
+            if crossing:
+                fair = _reference_volume_on(d.problem)
         rows.append({
-            "option": name, "status": opt.status, "volume_m3": volume,
+            "option": name, "crossing": crossing, "status": opt.status, "volume_m3": volume,
             "weight_N": d.weight if d is not None else math.nan,
             "reference_volume_m3": fair,
             "ratio_to_reference": volume / fair,
             "normalised_volume": bridge.normalised_volume(volume) if d is not None else math.nan,
+            **_split(d),
             "seconds": opt.seconds, "message": opt.message,
         })
     return rows
@@ -228,11 +276,14 @@ def compare(bridge: BridgeScenario, forms: Iterable[str] = (),
     Returns
     -------
     pandas.DataFrame
-        Columns ``option``, ``status``, ``volume_m3`` [m3], ``weight_N`` [N],
-        ``reference_volume_m3`` [m3] (the optimum on the same domain with the option's
-        own supports: a form on extra piers is set against an optimum on them too),
-        ``ratio_to_reference`` [-], ``normalised_volume`` [-] (volume sigma /
-        (deck_load span^2)), ``seconds`` [s], ``message``.  Volumes of
+        Columns ``option``, ``crossing`` (``""`` on the scenario's own supports,
+        else how the option's crossing differs, e.g. ``"3 piers"``), ``status``,
+        ``volume_m3`` [m3], ``weight_N`` [N], ``reference_volume_m3`` [m3] (the
+        optimum of the option's own crossing: a form on extra piers is set against
+        an optimum on them too), ``ratio_to_reference`` [-], ``normalised_volume``
+        [-] (volume sigma / (deck_load span^2)), ``tension_volume_m3``,
+        ``compression_volume_m3`` and ``pier_volume_m3`` (the form's pier shafts)
+        [m3], ``seconds`` [s], ``message``.  Volumes of
         options that did not solve are NaN.
     """
     import pandas as pd
