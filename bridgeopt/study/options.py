@@ -41,7 +41,8 @@ from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_sc
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
            "unregister_form", "available_forms", "solve_reference", "solve_option",
            "solve_options", "compare", "quantities", "STATUSES", "comparison_table",
-           "comparison_rows", "inputs_table", "bridge_from_file", "crossing_name"]
+           "comparison_rows", "inputs_table", "bridge_from_file", "crossing_name",
+           "series_name"]
 
 
 @dataclass(frozen=True)
@@ -187,6 +188,24 @@ def _reference_volume_on(problem) -> float:
         return math.nan
 
 
+def series_name(option: str, crossing: str = "") -> str:
+    """Legend and table name of a series: the option, with its crossing when it has its own.
+
+    Parameters
+    ----------
+    option : str
+        Option name (``"cable-stayed fan"``, ``"reference optimum"`` ...).
+    crossing : str
+        The ``crossing`` column: ``""`` for the scenario's own supports, else e.g.
+        ``"2 piers"``.
+
+    Returns
+    -------
+    str
+    """
+    return f"{option} ({crossing})" if crossing else option
+
+
 def crossing_name(problem, plain) -> str:
     """How the supports of ``problem`` differ from those of the crossing's ``plain`` problem.
 
@@ -258,7 +277,8 @@ def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> li
             if crossing:
                 fair = _reference_volume_on(d.problem)
         rows.append({
-            "option": name, "crossing": crossing, "status": opt.status, "volume_m3": volume,
+            "option": name, "crossing": crossing, "series": series_name(name, crossing),
+            "status": opt.status, "volume_m3": volume,
             "weight_N": d.weight if d is not None else math.nan,
             "reference_volume_m3": fair,
             "ratio_to_reference": volume / fair,
@@ -277,7 +297,8 @@ def compare(bridge: BridgeScenario, forms: Iterable[str] = (),
     -------
     pandas.DataFrame
         Columns ``option``, ``crossing`` (``""`` on the scenario's own supports,
-        else how the option's crossing differs, e.g. ``"3 piers"``), ``status``,
+        else how the option's crossing differs, e.g. ``"3 piers"``), ``series``
+        (the option named with its crossing, as in charts), ``status``,
         ``volume_m3`` [m3], ``weight_N`` [N], ``reference_volume_m3`` [m3] (the
         optimum of the option's own crossing: a form on extra piers is set against
         an optimum on them too), ``ratio_to_reference`` [-], ``normalised_volume``
