@@ -42,7 +42,7 @@ __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "
            "unregister_form", "available_forms", "solve_reference", "solve_option",
            "solve_options", "compare", "quantities", "STATUSES", "comparison_table",
            "comparison_rows", "inputs_table", "bridge_from_file", "crossing_name",
-           "series_name"]
+           "series_name", "reference_on"]
 
 
 @dataclass(frozen=True)
@@ -180,10 +180,25 @@ def inputs_table(bridge: BridgeScenario):
 
 
 @lru_cache(maxsize=64)
+def reference_on(problem) -> Design:
+    """The reference optimum of the crossing ``problem`` (a form's own supports), cached.
+
+    Parameters
+    ----------
+    problem : Problem
+        The problem a form was solved on (:func:`~bridgeopt.forms.form_problem`).
+
+    Raises
+    ------
+    SolveError, InputError
+    """
+    return solve_scenario(Scenario(name=problem.name, layout=problem)).design
+
+
 def _reference_volume_on(problem) -> float:
     """Reference optimum on the bridge's domain with a form's own supports. [m3]"""
     try:
-        return solve_scenario(Scenario(name=problem.name, layout=problem)).design.volume
+        return reference_on(problem).volume
     except (SolveError, InputError):
         return math.nan
 
