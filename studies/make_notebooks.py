@@ -88,7 +88,7 @@ NOTEBOOKS = {
           'material = workbook.param("material", "steel")\n'
           'arrangement = workbook.param("arrangement", "single")\n'
           'pylons = workbook.param("pylons", 1)  # per span; more stand on their own piers\n'
-          'divisions = workbook.param("divisions", 16, fast=8)',
+          'divisions = workbook.param("divisions", 16, fast=12)  # fast: rise still 2+ grid steps',
         SETUP + "\nfrom bridgeopt import PRESETS, BridgeScenario",
         "bridge = BridgeScenario(span=spans[0], rise=rise_ratio * spans[0],\n"
         "                        depth=depth_ratio * spans[0], deck_load=deck_load,\n"
