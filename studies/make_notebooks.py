@@ -222,7 +222,8 @@ NOTEBOOKS = {
         "              .format({'volume_m3': '{:,.5g}', 'weight_N': '{:,.5g}',\n"
         "                       'ratio_to_reference': '{:.3g}', 'normalised_volume': '{:.4g}'},\n"
         "                      na_rep='-'))",
-        "workbook.show(plots.options_figure(results, title=bridge.name))\n"
+        "workbook.show(plots.options_figure(study.options_by_series(results, comparison),\n"
+        "                                   title=bridge.name))\n"
         "workbook.show(plots.ratio_bar(comparison))",
         md("## Quantities by element group"),
         "for name, option in results.items():\n"

@@ -42,7 +42,7 @@ __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "
            "unregister_form", "available_forms", "solve_reference", "solve_option",
            "solve_options", "compare", "quantities", "STATUSES", "comparison_table",
            "comparison_rows", "inputs_table", "bridge_from_file", "crossing_name",
-           "series_name", "reference_on"]
+           "series_name", "reference_on", "options_by_series"]
 
 
 @dataclass(frozen=True)
@@ -219,6 +219,43 @@ def series_name(option: str, crossing: str = "") -> str:
     str
     """
     return f"{option} ({crossing})" if crossing else option
+
+
+def options_by_series(results: Mapping[str, Option], table) -> dict[str, Option]:
+    """The options to draw, each named with its crossing, each form after its crossing's reference.
+
+    A form on other supports than the scenario's (the ``crossing`` column of
+    ``table``, e.g. intermediate pylons on their own piers) is preceded by the
+    reference optimum of that crossing (:func:`reference_on`), named
+    ``"reference optimum (1 pier)"``, so that it is never drawn beside the plain
+    reference alone.
+
+    Parameters
+    ----------
+    results : mapping of str to Option
+        Solved options by name (:func:`solve_options`).
+    table : pandas.DataFrame
+        Their :func:`comparison_table` (``option`` and ``crossing`` columns).
+
+    Returns
+    -------
+    dict of str to Option
+        By :func:`series_name`; a crossing's reference that cannot be solved is an
+        option with status ``"failed"`` and the message.
+    """
+    out: dict[str, Option] = {}
+    crossings = dict(zip(table["option"], table.get("crossing", [""] * len(table))))
+    for name, option in results.items():
+        crossing = crossings.get(name) or ""
+        if crossing and option.design is not None:
+            label = series_name(REFERENCE, crossing)
+            try:
+                own = reference_on(option.design.problem)
+                out[label] = Option(label, "optimal", own, own.message)
+            except (SolveError, InputError) as err:
+                out[label] = Option(label, "failed", None, f"{label}: {err}")
+        out[series_name(name, crossing)] = option
+    return out
 
 
 def crossing_name(problem, plain) -> str:

@@ -167,7 +167,7 @@ class Explorer:
             other.message + "; showing the reference optimum only.", "note")
         self.results = results
         self.comparison = study.comparison_table(bridge, results)
-        drawn = self._drawn(results)
+        drawn = study.options_by_series(results, self.comparison)
         self.quantities = {n: study.quantities(o.design) for n, o in drawn.items()
                            if o.design is not None}
         self.figure = plots.options_figure(drawn, title=f"{bridge.name}: {bridge.span:,.0f} m "
@@ -182,24 +182,6 @@ class Explorer:
                 clear_output(wait=True)
                 for obj in objs:
                     display(obj)
-
-    def _drawn(self, results: dict) -> dict:
-        """The options drawn, each named with its crossing, and a form on its own crossing
-        (intermediate pylons on piers) preceded by that crossing's reference optimum."""
-        drawn = {}
-        for name, row in zip(self.comparison["option"], self.comparison.to_dict("records")):
-            option = results[name]
-            crossing = row.get("crossing") or ""
-            if crossing and option.design is not None:
-                try:
-                    own = study.reference_on(option.design.problem)
-                    drawn[plots.series_name(study.REFERENCE, crossing)] = study.Option(
-                        study.REFERENCE, "optimal", own, own.message)
-                except (InputError, SolveError) as err:
-                    self.message.value = message_html(
-                        f"reference optimum ({crossing}): {error_text(err)}", "note")
-            drawn[plots.series_name(name, crossing)] = option
-        return drawn
 
     def _traffic(self, bridge: BridgeScenario) -> None:
         """Solve the traffic cases, if any; a failure becomes a note, the rest still shows."""
