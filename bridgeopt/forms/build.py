@@ -8,8 +8,8 @@ form needs, so that the reference stays a fair lower bound:
 * intermediate pylons (``pylons > 1``) stand on their own piers: a vertical
   support at the bridge's foundation level under each
   (:meth:`~bridgeopt.model.bridge.BridgeScenario.to_problem` ``piers``), for the
-  form and the reference alike; that crossing is named by :func:`crossing_label`
-  ("2 piers") wherever it is shown;
+  form and the reference alike; studies name that crossing ("2 piers")
+  wherever it is shown (:func:`bridgeopt.study.options.crossing_name`);
 * a single span's cable-stayed pylon or suspension tower is held at its top by
   back stays or the main cable's back span running to the anchor point at the
   end of the back span (:attr:`~bridgeopt.model.bridge.BridgeScenario.back_span`):
@@ -44,7 +44,7 @@ from bridgeopt.forms.cable_stayed import cable_stayed_frame
 from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
 from bridgeopt.forms.suspension import suspension_frame
 
-__all__ = ["form_problem", "form_crossing", "extra_piers", "crossing_label", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
+__all__ = ["form_problem", "form_crossing", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
            "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag"]
 
 #: Least clearance between deck and cable or crown, as a part of the available height. [-]
@@ -64,30 +64,12 @@ def _pylon_positions(bridge: BridgeScenario, pylons: int) -> list[float]:
     return [j * step for j in range(pylons) if j * step <= 0.5 * bridge.span * (1 + 1e-12)]
 
 
-def extra_piers(bridge: BridgeScenario, spec: FormSpec) -> int:
-    """Intermediate piers per span that ``spec`` adds to the crossing (0: none).
-
-    Parameters
-    ----------
-    bridge : BridgeScenario
-        The crossing.
-    spec : FormSpec
-        The form; a cable-stayed form with ``pylons = n`` stands on n - 1 piers
-        in each span.
-
-    Returns
-    -------
-    int
-    """
-    return spec.pylons - 1 if isinstance(spec, CableStayedForm) else 0
-
-
 def form_crossing(bridge: BridgeScenario, spec: FormSpec) -> BridgeScenario:
     """The crossing ``spec`` stands on: ``bridge``, or it with the foundations a form needs.
 
     A deck arch on repeating spans springs from the pier foundations at the
     bottom of the envelope, so its crossing has them there whatever
-    ``bridge.foundation_depth`` says (named by :func:`crossing_label`).
+    ``bridge.foundation_depth`` says.
 
     Parameters
     ----------
@@ -106,32 +88,6 @@ def form_crossing(bridge: BridgeScenario, spec: FormSpec) -> BridgeScenario:
         if abs(bridge.foundation_level + depth) > 1e-9 * bridge.spacing:
             return dataclasses.replace(bridge, foundation_depth=depth)
     return bridge
-
-
-def crossing_label(bridge: BridgeScenario, spec: FormSpec) -> str:
-    """How the crossing of ``spec`` differs from ``bridge`` (``""``: the same supports).
-
-    Parameters
-    ----------
-    bridge : BridgeScenario
-        The crossing as given.
-    spec : FormSpec
-        The form.
-
-    Returns
-    -------
-    str
-        ``"3 piers"`` (intermediate piers per span), ``"foundations 60 m below the
-        deck"``, both joined by ", ", or ``""``.
-    """
-    parts = []
-    n = extra_piers(bridge, spec)
-    if n > 0:
-        parts.append(f"{n} pier" + ("s" if n > 1 else ""))
-    own = form_crossing(bridge, spec)
-    if own is not bridge:
-        parts.append(f"foundations {-own.foundation_level:g} m below the deck")
-    return ", ".join(parts)
 
 
 def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:

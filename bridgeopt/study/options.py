@@ -272,8 +272,9 @@ def crossing_name(problem, plain) -> str:
     -------
     str
         ``""`` for the same supports; ``"3 piers"`` for intermediate piers (per
-        span, counted over the whole span of a half model); ``"own supports"``
-        for any other difference.
+        span, counted over the whole span of a half model), ``"foundations 60 m
+        below the deck"`` for pier foundations moved, joined by ", "; ``"own
+        supports"`` for any other difference.
     """
     if problem is None or plain is None or (problem.supports, problem.mirror_lines) == \
             (plain.supports, plain.mirror_lines):
@@ -281,13 +282,20 @@ def crossing_name(problem, plain) -> str:
     mirrors = set(plain.mirror_lines)
     extra = [s for s in problem.supports if s not in plain.supports]
     lost = [s for s in plain.supports if s not in problem.supports]
-    x0 = plain.line_loads[0].start[0] if plain.line_loads else 0.0
-    inner = [s for s in extra if s.at[0] > x0 and s.fix == "z"]
-    if lost or len(inner) != len(extra) or set(problem.mirror_lines) != mirrors:
+    moved = [s for s in extra if any(t.at[0] == s.at[0] and t.fix == s.fix for t in lost)]
+    inner = [s for s in extra if s not in moved and s.fix == "z"]
+    if set(problem.mirror_lines) != mirrors or len(moved) != len(lost) \
+            or len(moved) + len(inner) != len(extra):
         return "own supports"
-    copies = max(1, round(problem.copies))
-    n = sum(1 if s.at[0] in mirrors else copies for s in inner)
-    return f"{n} pier" + ("s" if n != 1 else "")
+    parts = []
+    if inner:
+        copies = max(1, round(problem.copies))
+        n = sum(1 if s.at[0] in mirrors else copies for s in inner)
+        parts.append(f"{n} pier" + ("s" if n != 1 else ""))
+    if moved:
+        depths = sorted({-s.at[1] for s in moved})
+        parts.append("foundations " + ", ".join(f"{d:g}" for d in depths) + " m below the deck")
+    return ", ".join(parts)
 
 
 def _split(design) -> dict:
