@@ -123,13 +123,16 @@ def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable
                 progress: Callable[[int, int], None] | None = None):
     """:func:`span_sweep` for each pylon count (passed to the forms as ``options["pylons"]``).
 
-    Pylons on their own piers: with n pylons per span, n - 1 intermediate piers
+    Pylons on their own piers (the package's cable-stayed forms): with n pylons
+    per span, n - 1 intermediate piers
     stand in the span, their shafts down to the foundation level
     (``bridge.foundation_depth``) members of the form.  Each count is its own
     crossing (``crossing`` ``"2 piers"``), and each form is set against the
     reference optimum on the same piers (``reference_volume_m3``).  The rows of
     the scenario's plain reference (no intermediate pier) are repeated for every
-    count.
+    count.  A form whose intermediate pylons the structure itself carries
+    (:data:`bridgeopt.study.LEGS_FORM`, after :func:`bridgeopt.study.register_legs`)
+    stands on the plain crossing and is set against its plain reference.
 
     Parameters
     ----------
@@ -150,9 +153,9 @@ def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable
     -------
     pandas.DataFrame
         :func:`span_sweep`'s columns plus ``pylons`` [-] and ``foundations``
-        (pier foundations per span in the water: n on repeating spans, n - 1
-        between the abutments of a single span; the plain reference's rows count
-        the crossing's own) [-].
+        (pier foundations per span in the water: the crossing's own, 1 for
+        repeating spans and 0 between the abutments of a single span, plus one
+        per intermediate pier a form stands on) [-].
     """
     import pandas as pd
 
@@ -171,7 +174,9 @@ def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable
         df.insert(0, "pylons", n)
         own = 1 if bridge.arrangement == "repeating" else 0
         if len(df):
-            df["foundations"] = [own if o == REFERENCE else own + n - 1 for o in df["option"]]
+            # pier foundations: the crossing's own, and one per intermediate pier a form
+            # stands on (none for pylons carried by the structure itself)
+            df["foundations"] = [own + (n - 1 if c else 0) for c in df["crossing"]]
         frames.append(df)
     return pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
 
