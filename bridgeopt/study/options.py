@@ -36,6 +36,7 @@ from bridgeopt.forms.registry import (FORM_SOLVERS, KNOWN_FORMS, REFERENCE, Form
 from bridgeopt.forms.solve import group_quantities
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
+from bridgeopt.study.crossings import crossing_name, reference_on, series_name
 from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_scenario
 
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
@@ -179,46 +180,12 @@ def inputs_table(bridge: BridgeScenario):
     return pd.DataFrame(rows, columns=["input", "value", "unit"])
 
 
-@lru_cache(maxsize=64)
-def reference_on(problem) -> Design:
-    """The reference optimum of the crossing ``problem`` (a form's own supports), cached.
-
-    Parameters
-    ----------
-    problem : Problem
-        The problem a form was solved on (:func:`~bridgeopt.forms.form_problem`).
-
-    Raises
-    ------
-    SolveError, InputError
-    """
-    return solve_scenario(Scenario(name=problem.name, layout=problem)).design
-
-
 def _reference_volume_on(problem) -> float:
     """Reference optimum on the bridge's domain with a form's own supports. [m3]"""
     try:
         return reference_on(problem).volume
     except (SolveError, InputError):
         return math.nan
-
-
-def series_name(option: str, crossing: str = "") -> str:
-    """Legend and table name of a series: the option, with its crossing when it has its own.
-
-    Parameters
-    ----------
-    option : str
-        Option name (``"cable-stayed fan"``, ``"reference optimum"`` ...).
-    crossing : str
-        The ``crossing`` column: ``""`` for the scenario's own supports, else e.g.
-        ``"2 piers"``.
-
-    Returns
-    -------
-    str
-    """
-    return f"{option} ({crossing})" if crossing else option
 
 
 def options_by_series(results: Mapping[str, Option], table) -> dict[str, Option]:
@@ -256,46 +223,6 @@ def options_by_series(results: Mapping[str, Option], table) -> dict[str, Option]
                 out[label] = Option(label, "failed", None, f"{label}: {err}")
         out[series_name(name, crossing)] = option
     return out
-
-
-def crossing_name(problem, plain) -> str:
-    """How the supports of ``problem`` differ from those of the crossing's ``plain`` problem.
-
-    Parameters
-    ----------
-    problem : Problem
-        The problem an option was solved on.
-    plain : Problem
-        The crossing's own problem (its reference optimum's).
-
-    Returns
-    -------
-    str
-        ``""`` for the same supports; ``"3 piers"`` for intermediate piers (per
-        span, counted over the whole span of a half model), ``"foundations 60 m
-        below the deck"`` for pier foundations moved, joined by ", "; ``"own
-        supports"`` for any other difference.
-    """
-    if problem is None or plain is None or (problem.supports, problem.mirror_lines) == \
-            (plain.supports, plain.mirror_lines):
-        return ""
-    mirrors = set(plain.mirror_lines)
-    extra = [s for s in problem.supports if s not in plain.supports]
-    lost = [s for s in plain.supports if s not in problem.supports]
-    moved = [s for s in extra if any(t.at[0] == s.at[0] and t.fix == s.fix for t in lost)]
-    inner = [s for s in extra if s not in moved and s.fix == "z"]
-    if set(problem.mirror_lines) != mirrors or len(moved) != len(lost) \
-            or len(moved) + len(inner) != len(extra):
-        return "own supports"
-    parts = []
-    if inner:
-        copies = max(1, round(problem.copies))
-        n = sum(1 if s.at[0] in mirrors else copies for s in inner)
-        parts.append(f"{n} pier" + ("s" if n != 1 else ""))
-    if moved:
-        depths = sorted({-s.at[1] for s in moved})
-        parts.append("foundations " + ", ".join(f"{d:g}" for d in depths) + " m below the deck")
-    return ", ".join(parts)
 
 
 def _split(design) -> dict:
