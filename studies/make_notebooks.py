@@ -164,8 +164,10 @@ NOTEBOOKS = {
           'rise_ratio = workbook.param("rise_ratio", 0.2)    # rise above deck / span\n'
           'depth_ratio = workbook.param("depth_ratio", 0.1)  # depth below deck / span\n'
           'foundation_depth = workbook.param("foundation_depth", 60.0)  # m below the deck\n'
-          'foundation_cost = workbook.param("foundation_cost", 2.0e4)   # per pier foundation\n'
+          '# costs in one currency: steel at 1 per m3 in place, a deep-water pier foundation\n'
+          '# about as much as 1000 m3 of steel (order of magnitude, from memory)\n'
           'steel_cost = workbook.param("steel_cost", 1.0)    # per m3 of tension or compression\n'
+          'foundation_cost = workbook.param("foundation_cost", 1000.0)  # per pier foundation\n'
           'deck_load = workbook.param("deck_load", 2.0e5)    # N/m\n'
           'material = workbook.param("material", "steel")\n'
           'arrangement = workbook.param("arrangement", "repeating")\n'
@@ -193,7 +195,8 @@ NOTEBOOKS = {
         "fan, pylons on legs\"): the intermediate pylons have no foundation; inclined "
         "compression legs from the piers carry their tops, sized and height-optimized with "
         "the rest, on the plain crossing and against its plain reference."),
-        "workbook.show(charts.pylon_cost_figure(costs))\n"
+        "for s in sorted(set(costs['span_m'])):\n"
+        "    workbook.show(charts.pylon_cost_figure(costs, s))\n"
         "workbook.show(charts.pylon_figure(table))\n"
         "workbook.show(charts.ratio_figure(table, 'span_m', by_pylons=True,\n"
         "                                  x_title='span [m]'))",
