@@ -98,8 +98,14 @@ def crossing_outline(*, left: float, right: float, deck_from: float, deck_to: fl
     """
     pts = [(deck_from, bottom)]
     if foundation < bottom:
+        merged: list[list[float]] = []     # slots that touch or overlap make one wider slot
         for a in sorted(set(slots)):
-            pts += [(a, bottom), (a, foundation), (a + step, foundation), (a + step, bottom)]
+            if merged and a <= merged[-1][1] + 1e-9 * step:
+                merged[-1][1] = max(merged[-1][1], a + step)
+            else:
+                merged.append([a, a + step])
+        for a, b in merged:
+            pts += [(a, bottom), (a, foundation), (b, foundation), (b, bottom)]
     pts.append((deck_to, bottom))
     if right > deck_to:
         pts += [(deck_to, 0.0), (right, 0.0)]

@@ -197,3 +197,28 @@ def test_new_keys_round_trip_through_the_scenario_file():
     assert (s.bridge.back_span, s.bridge.foundation_depth) == (300.0, 90.0)
     again = parse_scenario(s.to_dict())
     assert again.bridge == s.bridge
+
+
+@pytest.mark.parametrize("arrangement, changes", [
+    ("repeating", {"foundation_depth": 100.0}),
+    ("single", {"back_span": 100.0})])
+def test_whole_span_model_matches_the_half_model_on_the_same_crossing(arrangement, changes):
+    """The whole-span model (for traffic cases and channels) has the same supports as the
+    half model: pier slots down to the foundations, back spans and their anchor points."""
+    from bridgeopt.model.crossing import full_span_problem
+    from bridgeopt.solver.layout import optimize_layout
+
+    b = BridgeScenario(span=400.0, rise=100.0, depth=50.0, deck_load=1.0e5, material=STEEL,
+                       arrangement=arrangement, divisions=8, **changes)
+    whole = optimize_layout(full_span_problem(b)).volume
+    assert whole == pytest.approx(optimize_layout(b.to_problem()).volume, rel=1e-7)
+
+
+def test_touching_pier_slots_make_one_slot():
+    from bridgeopt.model.crossing import full_span_problem
+
+    b = BridgeScenario(span=400.0, rise=100.0, depth=0.0, deck_load=1.0e5, material=STEEL,
+                       divisions=8, foundation_depth=100.0)
+    outline = full_span_problem(b, piers=(100.0, 150.0)).domain.outline
+    assert (100.0, -100.0) in outline and (200.0, -100.0) in outline
+    assert (150.0, -100.0) not in outline
