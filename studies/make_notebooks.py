@@ -57,7 +57,7 @@ NOTEBOOKS = {
           'material = workbook.param("material", "steel")\n'
           'arrangement = workbook.param("arrangement", "single")\n'
           'form = workbook.param("form", "suspension")\n'
-          'pylons = workbook.param("pylons", 2)\n'
+          'pylons = workbook.param("pylons", 1)  # per span; more stand on their own piers\n'
           'divisions = workbook.param("divisions", 30, fast=12)  # 30 = the meeting grid\n'
           'name = workbook.param("name", "Quillmarsh Sound crossing (fictional)")',
         SETUP + "\nfrom bridgeopt.workbook.explorer import Explorer",
@@ -87,8 +87,8 @@ NOTEBOOKS = {
           'deck_load = workbook.param("deck_load", 2.0e5)    # N/m\n'
           'material = workbook.param("material", "steel")\n'
           'arrangement = workbook.param("arrangement", "single")\n'
-          'pylons = workbook.param("pylons", 2)\n'
-          'divisions = workbook.param("divisions", 16, fast=8)',
+          'pylons = workbook.param("pylons", 1)  # per span; more stand on their own piers\n'
+          'divisions = workbook.param("divisions", 16, fast=12)  # fast: rise still 2+ grid steps',
         SETUP + "\nfrom bridgeopt import PRESETS, BridgeScenario",
         "bridge = BridgeScenario(span=spans[0], rise=rise_ratio * spans[0],\n"
         "                        depth=depth_ratio * spans[0], deck_load=deck_load,\n"
@@ -99,11 +99,15 @@ NOTEBOOKS = {
         "table = workbook.sweep(study.span_sweep, bridge, spans, forms, {'pylons': pylons},\n"
         "                       description='spans')",
         md("Volume in the normalised form volume / (deck load x span^2 / strength) against "
-        "span / (strength / (density g)); shaded: spans where an option found no structure."),
+        "span / (strength / (density g)); shaded: spans where an option found no structure. "
+        "Every form stands on the crossing's own supports (abutments, back spans and their "
+        "anchor points for a single span) and is compared with the reference optimum of "
+        "that crossing; a form on other supports (pylons on their own piers) is named with "
+        "its crossing, beside that crossing's reference."),
         "workbook.show(charts.span_volume_figure(table))\n"
         "workbook.show(charts.ratio_figure(table, x_title='span / (strength / (density g)) "
         "[-]'))",
-        "workbook.show(table.pivot_table(index='span_m', columns='option',\n"
+        "workbook.show(table.pivot_table(index='span_m', columns='series',\n"
         "                                values='normalised_volume').round(4))",
         md("## Inputs\n\nBase scenario, at the first span; rise and depth scale with the span, spans swept: see the table above."),
         "workbook.show(workbook.scenario_html(bridge))\n"
@@ -123,7 +127,7 @@ NOTEBOOKS = {
           'deck_load = workbook.param("deck_load", 2.0e5)    # N/m\n'
           'material = workbook.param("material", "steel")\n'
           'arrangement = workbook.param("arrangement", "single")\n'
-          'pylons = workbook.param("pylons", 2)\n'
+          'pylons = workbook.param("pylons", 1)  # per span; more stand on their own piers\n'
           'divisions = workbook.param("divisions", 40, fast=20)',
         SETUP + "\nfrom bridgeopt import PRESETS, BridgeScenario",
         "bridge = BridgeScenario(span=span, rise=span / 2, depth=depth, deck_load=deck_load,\n"
@@ -134,12 +138,14 @@ NOTEBOOKS = {
         "rises = [span / r for r in span_to_rise]\n"
         "table = workbook.sweep(study.height_sweep, bridge, rises, forms, {'pylons': pylons},\n"
         "                       description='heights')",
-        md("Shaded bands: span-to-height ratios common in practice (from memory, not from a "
-        "code) for cable-stayed pylons above the deck and for suspension sags."),
+        md("Shaded bands: ratios of built bridges (common practice figures, not from a code): "
+        "span / pylon height above the deck 3.4 to 4.9 for cable-stayed bridges, span / sag "
+        "8.5 to 13.5 for suspension bridges. The horizontal axis is span / allowed rise, the "
+        "most a pylon or tower may rise."),
         "workbook.show(charts.height_figure(table))\n"
         "workbook.show(charts.ratio_figure(table, 'span_to_rise',\n"
         "                                  x_title='span / allowed rise above deck [-]'))",
-        "workbook.show(table.pivot_table(index='rise_m', columns='option',\n"
+        "workbook.show(table.pivot_table(index='rise_m', columns='series',\n"
         "                                values='volume_m3').round(1))",
         md("## Inputs\n\nBase scenario; the allowed rise is swept (see the table above)."),
         "workbook.show(workbook.scenario_html(bridge))\n"
@@ -148,33 +154,55 @@ NOTEBOOKS = {
     ],
     "pylon_study.ipynb": [
         _opening("Pylon-count study",
-                 "for each form, how do volume and the ratio to the least possible volume "
-                 "change with 1 to 4 pylons per span, across spans?"),
+                 "with 1 to 4 pylons per span, each intermediate pylon on its own pier in the "
+                 "water, how do the volume and cost of superstructure, piers and foundations "
+                 "add up, and which pylon count is cheapest?"),
         COMMON_PARAMETERS
         + 'spans = workbook.param("spans", [500.0, 1000.0, 1500.0, 2000.0, 3000.0, 4000.0,\n'
           '                                  5000.0], fast=[1000.0, 3000.0])   # m\n'
           'pylon_counts = workbook.param("pylon_counts", [1, 2, 3, 4], fast=[1, 2])\n'
           'rise_ratio = workbook.param("rise_ratio", 0.2)    # rise above deck / span\n'
           'depth_ratio = workbook.param("depth_ratio", 0.1)  # depth below deck / span\n'
+          'foundation_depth = workbook.param("foundation_depth", 60.0)  # m below the deck\n'
+          '# costs in one currency: steel at 1 per m3 in place, a deep-water pier foundation\n'
+          '# about as much as 1000 m3 of steel (order of magnitude, from memory)\n'
+          'steel_cost = workbook.param("steel_cost", 1.0)    # per m3 of tension or compression\n'
+          'foundation_cost = workbook.param("foundation_cost", 1000.0)  # per pier foundation\n'
           'deck_load = workbook.param("deck_load", 2.0e5)    # N/m\n'
           'material = workbook.param("material", "steel")\n'
-          'arrangement = workbook.param("arrangement", "single")\n'
-          'divisions = workbook.param("divisions", 16, fast=8)',
-        SETUP + "\nfrom bridgeopt import PRESETS, BridgeScenario",
+          'arrangement = workbook.param("arrangement", "repeating")\n'
+          'divisions = workbook.param("divisions", 24, fast=12)',
+        SETUP + "\nfrom bridgeopt import PRESETS, BridgeScenario, UnitCosts",
         "bridge = BridgeScenario(span=spans[0], rise=rise_ratio * spans[0],\n"
         "                        depth=depth_ratio * spans[0], deck_load=deck_load,\n"
         "                        material=PRESETS[material], arrangement=arrangement,\n"
-        "                        divisions=divisions, name='pylon study')\n"
-        "forms = [f for f in study.available_forms() if f != 'arch']\n"
+        "                        divisions=divisions, foundation_depth=foundation_depth,\n"
+        "                        name='pylon study')\n"
+        "study.register_legs()   # intermediate pylons carried by legs, no foundation\n"
+        "forms = [f for f in study.available_forms() if f.startswith('cable-stayed')]\n"
         "workbook.show(workbook.forms_note(forms))\n"
         "table = workbook.sweep(study.pylon_sweep, bridge, spans, pylon_counts, forms,\n"
-        "                       description='pylons')",
+        "                       description='pylons', keep_proportions=True)\n"
+        "costs = study.pylon_costs(table, costs=UnitCosts(steel_cost, steel_cost),\n"
+        "                          foundation_cost=foundation_cost)",
+        md("Two meanings of a pylon count, named apart. **Pylons on their own piers** (the "
+        "cable-stayed fan, semi-fan and harp): each count is its own crossing (\"1 pier\", "
+        "\"2 piers\" ... per span), and each form is drawn and tabulated against the "
+        "reference optimum of the same crossing (dotted), never against the plain span's; "
+        "the pier shafts run down to the foundation level and are members of the structure "
+        "(sized in compression, with their self-weight), and each foundation has the cost "
+        "given above, in the currency of the unit costs. **Pylons on legs** (\"cable-stayed "
+        "fan, pylons on legs\"): the intermediate pylons have no foundation; inclined "
+        "compression legs from the piers carry their tops, sized and height-optimized with "
+        "the rest, on the plain crossing and against its plain reference."),
+        "for s in sorted(set(costs['span_m'])):\n"
+        "    workbook.show(charts.pylon_cost_figure(costs, s))\n"
         "workbook.show(charts.pylon_figure(table))\n"
         "workbook.show(charts.ratio_figure(table, 'span_m', by_pylons=True,\n"
         "                                  x_title='span [m]'))",
-        "workbook.show(table.pivot_table(index=['span_m'], columns=['option', 'pylons'],\n"
-        "                                values='volume_m3').round(1))",
-        md("## Inputs\n\nBase scenario, at the first span; rise and depth scale with the span."),
+        "workbook.show(costs.round(1).style.hide(axis='index'))",
+        md("## Inputs\n\nBase scenario, at the first span; rise and depth scale with the span, "
+        "the foundation level does not."),
         "workbook.show(workbook.scenario_html(bridge))\n"
         "workbook.show(study.inputs_table(bridge).style.hide(axis='index')\n"
         "              .format(workbook.number))",
@@ -186,7 +214,7 @@ NOTEBOOKS = {
         COMMON_PARAMETERS
         + 'scenario_file = workbook.param("scenario", "scenarios/demo.toml")\n'
           'forms = workbook.param("forms", ["cable-stayed fan", "suspension", "arch"])\n'
-          'pylons = workbook.param("pylons", 2)\n'
+          'pylons = workbook.param("pylons", 1)  # per span; more stand on their own piers\n'
           'divisions = workbook.param("divisions", 0, fast=12)  # 0: as in the scenario file',
         SETUP,
         "bridge = study.bridge_from_file(scenario_file, divisions=divisions or None)\n"
@@ -198,11 +226,12 @@ NOTEBOOKS = {
         md("## Results"),
         "workbook.show(workbook.results_html(comparison))\n"
         "workbook.show(workbook.forms_note(forms))\n"
-        "workbook.show(comparison.drop(columns=['seconds']).style.hide(axis='index')\n"
+        "workbook.show(comparison.drop(columns=['seconds', 'option']).style.hide(axis='index')\n"
         "              .format({'volume_m3': '{:,.5g}', 'weight_N': '{:,.5g}',\n"
         "                       'ratio_to_reference': '{:.3g}', 'normalised_volume': '{:.4g}'},\n"
         "                      na_rep='-'))",
-        "workbook.show(plots.options_figure(results, title=bridge.name))\n"
+        "workbook.show(plots.options_figure(study.options_by_series(results, comparison),\n"
+        "                                   title=bridge.name))\n"
         "workbook.show(plots.ratio_bar(comparison))",
         md("## Quantities by element group"),
         "for name, option in results.items():\n"

@@ -27,7 +27,8 @@ def _bridge(**changes) -> BridgeScenario:
 def _channel(outline) -> None:
     parse_scenario({"name": "Orrin Cut (fictional)", "material": {"preset": "steel"},
                     "bridge": {"span": 600.0, "rise": 150.0, "depth": 60.0, "deck_load": 1.8e5,
-                               "divisions": 20, "channel": [{"outline": outline}]}})
+                               "divisions": 20, "channel": [{"outline": outline}],
+                               "foundation_depth": 60.0}})   # the pier feet at the bottom
 
 
 BAD = [

@@ -40,7 +40,7 @@ KEYS: dict[str, tuple[str, ...]] = {
     "line_load": ("from", "to", "intensity"),
     "symmetry": ("x",),
     "bridge": ("span", "rise", "depth", "deck_load", "arrangement", "divisions", "name",
-               "piers", "anchorages", "channel"),
+               "back_span", "foundation_depth", "piers", "anchorages", "channel"),
     "bridge.channel": ("outline",),
     "solve": ("member_adding", "batch", "geometry_optimization"),
     "load_case": ("name", "pattern", "intensity", "side", "from", "to", "load", "line_load"),

@@ -190,6 +190,10 @@ class Scenario:
             out["bridge"] = {"span": b.span, "rise": b.rise, "depth": b.depth,
                              "deck_load": b.deck_load, "arrangement": b.arrangement,
                              "divisions": b.divisions}
+            if b.back_span is not None:
+                out["bridge"]["back_span"] = b.back_span
+            if b.foundation_depth:
+                out["bridge"]["foundation_depth"] = b.foundation_depth
             out["material"] = material_dict(b.material)
             if b.compression_material is not None:
                 out["compression_material"] = material_dict(b.compression_material)

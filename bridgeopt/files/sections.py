@@ -356,10 +356,17 @@ def parse_bridge(data: Mapping, name: str) -> BridgeScenario:
         raise InputError("bridge.divisions", short(divisions),
                          "an even whole number from 2 to 240")
     divisions = int(divisions)
+    back_span = raw.get("back_span")
+    if back_span is not None:
+        back_span = number("bridge.back_span", back_span, "a number >= 0 m (at most the span)",
+                           lambda v: 0 <= v <= span)
+    foundation = number("bridge.foundation_depth", raw.get("foundation_depth", 0.0),
+                        "a number >= 0 m below the deck", lambda v: v >= 0)
     material, comp = parse_materials(data)
     bridge = BridgeScenario(span=span, rise=rise, depth=depth, deck_load=deck_load,
                             material=material, arrangement=arrangement, divisions=divisions,
-                            name=name, compression_material=comp)
+                            name=name, compression_material=comp, back_span=back_span,
+                            foundation_depth=foundation)
     try:
         bridge.to_problem()
     except InputError as err:

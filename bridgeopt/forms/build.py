@@ -5,14 +5,16 @@ are both solved: :meth:`~bridgeopt.model.bridge.BridgeScenario.to_problem` (same
 domain, deck load, materials, mirror lines and copies), plus the supports the
 form needs, so that the reference stays a fair lower bound:
 
-* intermediate pylons (``pylons > 1``) stand on piers: a vertical support at the
-  bottom of the domain under each, for the form and the reference alike;
-* a single span's cable-stayed pylon or suspension tower is held horizontally at
-  its top by back stays or the main cable's back span running to an anchorage
-  behind the abutment, outside the modelled domain.  This is modelled as a free
-  horizontal reaction along the whole abutment line x = 0 (as on a mirror line),
-  which the reference gets as well; the anchorage and back stays themselves are
-  not sized, in the form or in the reference.
+* intermediate pylons (``pylons > 1``) stand on their own piers: a vertical
+  support at the bridge's foundation level under each
+  (:meth:`~bridgeopt.model.bridge.BridgeScenario.to_problem` ``piers``), for the
+  form and the reference alike; studies name that crossing ("2 piers")
+  wherever it is shown (:func:`bridgeopt.study.options.crossing_name`);
+* a single span's cable-stayed pylon or suspension tower is held at its top by
+  back stays or the main cable's back span running to the anchor point at the
+  end of the back span (:attr:`~bridgeopt.model.bridge.BridgeScenario.back_span`):
+  the crossing's own support, which the plain reference has too; the back
+  stays and cable are members of the form (:mod:`bridgeopt.forms.backspan`).
 
 :func:`build_form` turns a spec into a :class:`~bridgeopt.solver.frame.Frame` and its
 free geometry (:class:`~bridgeopt.geometry.optimize.NodeMoves`), checking that the form
@@ -34,14 +36,15 @@ from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.frame import Frame
 from bridgeopt.geometry.optimize import NodeMoves
-from bridgeopt.model.problem import Problem, Support
+from bridgeopt.model.problem import Problem
 from bridgeopt.forms.arch import arch_frame
+from bridgeopt.forms.backspan import with_back_spans
 from bridgeopt.forms.builder import available_heights, deck_level, funicular_heights
 from bridgeopt.forms.cable_stayed import cable_stayed_frame
 from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
 from bridgeopt.forms.suspension import suspension_frame
 
-__all__ = ["form_problem", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
+__all__ = ["form_problem", "form_crossing", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
            "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag"]
 
 #: Least clearance between deck and cable or crown, as a part of the available height. [-]
@@ -61,12 +64,37 @@ def _pylon_positions(bridge: BridgeScenario, pylons: int) -> list[float]:
     return [j * step for j in range(pylons) if j * step <= 0.5 * bridge.span * (1 + 1e-12)]
 
 
+def form_crossing(bridge: BridgeScenario, spec: FormSpec) -> BridgeScenario:
+    """The crossing ``spec`` stands on: ``bridge``, or it with the foundations a form needs.
+
+    A deck arch on repeating spans springs from the pier foundations at the
+    bottom of the envelope, so its crossing has them there whatever
+    ``bridge.foundation_depth`` says.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing as given.
+    spec : FormSpec
+        The form.
+
+    Returns
+    -------
+    BridgeScenario
+    """
+    if isinstance(spec, ArchForm) and spec.variant == "deck-arch" \
+            and bridge.arrangement == "repeating" and bridge.depth_cells:
+        depth = bridge.depth_cells * bridge.spacing
+        if abs(bridge.foundation_level + depth) > 1e-9 * bridge.spacing:
+            return dataclasses.replace(bridge, foundation_depth=depth)
+    return bridge
+
+
 def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
     """The half-span problem on which ``spec`` and its reference are both solved.
 
-    The bridge's own problem, plus the supports the form needs (see the module
-    docstring): piers under intermediate pylons, and the horizontal anchorage of
-    a single span's pylon or tower tops.
+    The bridge's own problem (its supports: piers, abutments and back-span anchor
+    points), plus the piers of intermediate pylons (see the module docstring).
 
     Parameters
     ----------
@@ -84,24 +112,23 @@ def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
     ------
     InputError
         Intermediate pylons that do not stand on grid nodes (``form.pylons``
-        must divide ``bridge.divisions``).
+        must divide ``bridge.divisions``); a single-span cable-stayed or
+        suspension form without back spans.
     """
-    problem = bridge.to_problem()
-    extra: list[Support] = []
+    piers: list[float] = []
     if isinstance(spec, CableStayedForm) and spec.pylons > 1:
         if bridge.divisions % spec.pylons:
             raise InputError("form.pylons", spec.pylons,
                              f"a divisor of bridge.divisions = {bridge.divisions} (each "
                              "intermediate pylon's pier stands on a grid node)")
-        bottom = problem.domain.bounds[2]
-        extra = [Support((x, bottom), "z") for x in _pylon_positions(bridge, spec.pylons)[1:]]
-    mirrors = problem.mirror_lines
-    if isinstance(spec, (CableStayedForm, SuspensionForm)) and bridge.arrangement == "single":
-        mirrors = (0.0,) + tuple(mirrors)
-    if extra or mirrors != problem.mirror_lines:
-        problem = dataclasses.replace(problem, supports=problem.supports + tuple(extra),
-                                      mirror_lines=mirrors)
-    return problem
+        piers = _pylon_positions(bridge, spec.pylons)[1:]
+    if isinstance(spec, (CableStayedForm, SuspensionForm)) and bridge.arrangement == "single" \
+            and bridge.back_cells == 0:
+        raise InputError("bridge.back_span", bridge.back_span,
+                         f">= one grid step ({bridge.spacing:.6g} m) and a rise above the deck "
+                         f"for a single-span {spec.type} form (the back stays or the main "
+                         "cable's back span need the anchor points at the end of the back span)")
+    return form_crossing(bridge, spec).to_problem(piers=piers)
 
 
 def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
@@ -239,11 +266,10 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
             h, bounds = _free(start.get("pylon_height", 2 * reach / START_SPAN_TO_HEIGHT),
                               LEAST_RATIO * reach, rise, "bridge.rise", bridge.rise,
                               "a pylon above the deck")
-        return cable_stayed_frame(problem, pylons_x=_pylon_positions(bridge, spec.pylons),
-                                  reach=reach, pattern=spec.pattern,
-                                  stays=spec.stays or _stays(bridge, reach),
-                                  height=h, anchor_zone=spec.anchor_zone or ANCHOR_ZONE,
-                                  height_bounds=bounds)
+        return with_back_spans(*cable_stayed_frame(
+            problem, pylons_x=_pylon_positions(bridge, spec.pylons), reach=reach,
+            pattern=spec.pattern, stays=spec.stays or _stays(bridge, reach), height=h,
+            anchor_zone=spec.anchor_zone or ANCHOR_ZONE, height_bounds=bounds))
     if isinstance(spec, SuspensionForm):
         least = CLEARANCE * rise
         tower_bounds = sag_bounds = height_bounds = None
@@ -283,9 +309,9 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
         n = _panels(bridge, spec.spacing)
 
         def make(profile):
-            return suspension_frame(problem, panels=n, tower=tower, sag=sag, shape=spec.shape,
-                                    profile=profile, sag_bounds=sag_bounds,
-                                    tower_bounds=tower_bounds, height_bounds=height_bounds)
+            return with_back_spans(*suspension_frame(
+                problem, panels=n, tower=tower, sag=sag, shape=spec.shape, profile=profile,
+                sag_bounds=sag_bounds, tower_bounds=tower_bounds, height_bounds=height_bounds))
         x = xs + (xe - xs) * np.arange(n + 1) / n
         return _shaped(make, spec.shape, problem, x, zd + tower, zd + tower - sag, "tension",
                        "tension")

@@ -8,16 +8,18 @@ the symmetry too.  :func:`full_span_problem` therefore models the whole span,
 x from 0 to ``span``, reported as one span (``copies = 1``):
 
 * ``"single"``: abutment faces at x = 0 and x = span, held in both directions
-  from the deck down to the bottom of the domain;
+  from the deck down to the bottom of the domain, and the back spans behind
+  them with their anchor points at ground (deck) level, as in
+  :meth:`~bridgeopt.model.bridge.BridgeScenario.to_problem`;
 * ``"repeating"``: the pier lines at x = 0 and x = span are held horizontally
-  and the pier foundations (their feet, at the bottom of the domain) take the
-  vertical reactions.  Holding a pier line horizontally assumes each
+  and the pier foundations (at the foundation level, ``bridge.foundation_depth``
+  below the deck) take the vertical reactions.  Holding a pier line horizontally assumes each
   neighbouring span carries the mirror image of this span's load (for half-span
   traffic: the adjacent half of the next span is loaded too); for the central
   span of a long run that is one of the patterns a designer would check.
 
-``piers`` adds a foundation point (held in x and z) at the bottom of the domain
-at each given x; ``anchorages`` adds a held point at each given (x, z).  Only
+``piers`` adds a foundation point (held in x and z) at the foundation level at
+each given x (with a pier slot down to it when it lies below the envelope); ``anchorages`` adds a held point at each given (x, z).  Only
 these points and the abutments or pier lines above carry reactions: the
 engineer decides where foundations may go.  ``channels`` are excluded zones
 (polygons): no node lies inside one and no member, curved centrelines
@@ -30,7 +32,7 @@ import math
 
 import numpy as np
 
-from bridgeopt.model.bridge import BridgeScenario
+from bridgeopt.model.bridge import BridgeScenario, crossing_outline
 from bridgeopt.errors import InputError
 from bridgeopt.model.plane import points_in_polygon
 from bridgeopt.model.problem import Domain, LineLoad, Problem, Support
@@ -100,7 +102,7 @@ def full_span_problem(bridge: BridgeScenario, *, piers=(), anchorages=(), channe
     bridge : BridgeScenario
         The crossing (span, rise, depth, divisions, deck load, materials, arrangement).
     piers : sequence of float
-        x-coordinates of extra foundations at the bottom of the domain. [m]
+        x-coordinates of extra foundations at the foundation level. [m]
     anchorages : sequence of (x, z)
         Extra held points (grid nodes of the domain). [m]
     channels : sequence of polygons
@@ -116,24 +118,33 @@ def full_span_problem(bridge: BridgeScenario, *, piers=(), anchorages=(), channe
     s = bridge.spacing
     span = float(bridge.span)
     top, bottom = bridge.rise_cells * s, -bridge.depth_cells * s
+    fz = bridge.foundation_level
+    back = bridge.back_length
     channels = tuple(_below_deck(i, c, s) for i, c in enumerate(channels))
-    domain = Domain(((0.0, bottom), (span, bottom), (span, top), (0.0, top)), tuple(channels))
     if bridge.arrangement == "repeating":
-        supports = [Support((0.0, bottom), "z"), Support((span, bottom), "z")]
+        supports = [Support((0.0, fz), "z"), Support((span, fz), "z")]
         mirrors = (0.0, span)
+        slots = [0.0, span - s]
     else:
         supports = [Support((x, -j * s), "xz") for x in (0.0, span)
                     for j in range(bridge.depth_cells + 1)]
+        if back:
+            supports += [Support((-back, 0.0), "xz"), Support((span + back, 0.0), "xz")]
         mirrors = ()
+        slots = []
     for i, x in enumerate(piers):
         x = _on_grid(f"bridge.piers[{i}]", x, s, 0.0, span)
-        supports.append(Support((x, bottom), "xz"))
+        supports.append(Support((x, fz), "xz"))
+        slots.append(min(x, span - s))
+    outline = crossing_outline(left=-back, right=span + back, deck_from=0.0, deck_to=span,
+                               bottom=bottom, top=top, slots=slots, foundation=fz, step=s)
+    domain = Domain(outline, tuple(channels))
     for i, pt in enumerate(anchorages):
         try:
             x, z = (float(v) for v in pt)
         except (TypeError, ValueError):
             raise InputError(f"bridge.anchorages[{i}]", pt, "a pair [x, z] in m") from None
-        x = _on_grid(f"bridge.anchorages[{i}]", x, s, 0.0, span)
+        x = _on_grid(f"bridge.anchorages[{i}]", x, s, -back, span + back)
         z = _on_grid(f"bridge.anchorages[{i}]", z, s, bottom, top)
         supports.append(Support((x, z), "xz"))
     _clear_of_supports(channels, supports, s)

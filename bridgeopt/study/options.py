@@ -36,12 +36,14 @@ from bridgeopt.forms.registry import (FORM_SOLVERS, KNOWN_FORMS, REFERENCE, Form
 from bridgeopt.forms.solve import group_quantities
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
+from bridgeopt.study.crossings import crossing_name, reference_on, series_name
 from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_scenario
 
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
            "unregister_form", "available_forms", "solve_reference", "solve_option",
            "solve_options", "compare", "quantities", "STATUSES", "comparison_table",
-           "comparison_rows", "inputs_table", "bridge_from_file"]
+           "comparison_rows", "inputs_table", "bridge_from_file", "crossing_name",
+           "series_name", "reference_on", "options_by_series"]
 
 
 @dataclass(frozen=True)
@@ -164,6 +166,9 @@ def inputs_table(bridge: BridgeScenario):
             ("span", bridge.span, "m"),
             ("rise allowed above deck", bridge.rise, "m"),
             ("depth allowed below deck", bridge.depth, "m"),
+            ("pier foundations below deck", -bridge.foundation_level, "m"),
+            *((("back span behind each abutment", bridge.back_length, "m"),)
+              if bridge.arrangement == "single" else ()),
             ("deck load", bridge.deck_load / 1e3, "kN/m"),
             ("material", m.name, ""),
             ("tension design stress", m.tension_strength / 1e6, "MPa"),
@@ -175,13 +180,63 @@ def inputs_table(bridge: BridgeScenario):
     return pd.DataFrame(rows, columns=["input", "value", "unit"])
 
 
-@lru_cache(maxsize=64)
 def _reference_volume_on(problem) -> float:
     """Reference optimum on the bridge's domain with a form's own supports. [m3]"""
     try:
-        return solve_scenario(Scenario(name=problem.name, layout=problem)).design.volume
+        return reference_on(problem).volume
     except (SolveError, InputError):
         return math.nan
+
+
+def options_by_series(results: Mapping[str, Option], table) -> dict[str, Option]:
+    """The options to draw, each named with its crossing, each form after its crossing's reference.
+
+    A form on other supports than the scenario's (the ``crossing`` column of
+    ``table``, e.g. intermediate pylons on their own piers) is preceded by the
+    reference optimum of that crossing (:func:`reference_on`), named
+    ``"reference optimum (1 pier)"``, so that it is never drawn beside the plain
+    reference alone.
+
+    Parameters
+    ----------
+    results : mapping of str to Option
+        Solved options by name (:func:`solve_options`).
+    table : pandas.DataFrame
+        Their :func:`comparison_table` (``option`` and ``crossing`` columns).
+
+    Returns
+    -------
+    dict of str to Option
+        By :func:`series_name`; a crossing's reference that cannot be solved is an
+        option with status ``"failed"`` and the message.
+    """
+    out: dict[str, Option] = {}
+    crossings = dict(zip(table["option"], table.get("crossing", [""] * len(table))))
+    for name, option in results.items():
+        crossing = crossings.get(name) or ""
+        if crossing and option.design is not None:
+            label = series_name(REFERENCE, crossing)
+            try:
+                own = reference_on(option.design.problem)
+                out[label] = Option(label, "optimal", own, own.message)
+            except (SolveError, InputError) as err:
+                out[label] = Option(label, "failed", None, f"{label}: {err}")
+        out[series_name(name, crossing)] = option
+    return out
+
+
+def _split(design) -> dict:
+    """Volumes by part: tension and compression elements, and the pier shafts. [m3]"""
+    if design is None:
+        return {"tension_volume_m3": math.nan, "compression_volume_m3": math.nan,
+                "pier_volume_m3": math.nan}
+    m = design.members
+    vol = np.asarray(m.volume, dtype=float) * design.copies
+    sense = np.asarray(m.sense, dtype=str)
+    group = np.asarray(m.group, dtype=str)
+    return {"tension_volume_m3": float(vol[sense == "tension"].sum()),
+            "compression_volume_m3": float(vol[sense != "tension"].sum()),
+            "pier_volume_m3": float(vol[group == "pier"].sum())}
 
 
 def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> list[dict]:
@@ -201,21 +256,21 @@ def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> li
     for name, opt in results.items():
         d = opt.design
         volume = d.volume if d is not None else math.nan
-        # a form standing on piers the plain reference lacks is set against the optimum
-        # with the same supports, so that the ratio stays a fair one (>= 1)
-        fair = ref_volume
+        # a form standing on piers the plain reference lacks is its own crossing, set
+        # against the optimum with the same supports, so that the ratio stays a fair one
+        fair, crossing = ref_volume, ""
         if d is not None and name != REFERENCE and ref_problem is not None:
-            held = (getattr(d.problem, "supports", ref_problem.supports),
-                    getattr(d.problem, "mirror_lines", ref_problem.mirror_lines))
-            if held != (ref_problem.supports, ref_problem.mirror_lines):
-                fair = _reference_volume_on(dataclasses.replace(
-                    ref_problem, supports=held[0], mirror_lines=held[1]))
+            crossing = crossing_name(getattr(d, "problem", None), ref_problem)
+            if crossing:
+                fair = _reference_volume_on(d.problem)
         rows.append({
-            "option": name, "status": opt.status, "volume_m3": volume,
+            "option": name, "crossing": crossing, "series": series_name(name, crossing),
+            "status": opt.status, "volume_m3": volume,
             "weight_N": d.weight if d is not None else math.nan,
             "reference_volume_m3": fair,
             "ratio_to_reference": volume / fair,
             "normalised_volume": bridge.normalised_volume(volume) if d is not None else math.nan,
+            **_split(d),
             "seconds": opt.seconds, "message": opt.message,
         })
     return rows
@@ -228,11 +283,15 @@ def compare(bridge: BridgeScenario, forms: Iterable[str] = (),
     Returns
     -------
     pandas.DataFrame
-        Columns ``option``, ``status``, ``volume_m3`` [m3], ``weight_N`` [N],
-        ``reference_volume_m3`` [m3] (the optimum on the same domain with the option's
-        own supports: a form on extra piers is set against an optimum on them too),
-        ``ratio_to_reference`` [-], ``normalised_volume`` [-] (volume sigma /
-        (deck_load span^2)), ``seconds`` [s], ``message``.  Volumes of
+        Columns ``option``, ``crossing`` (``""`` on the scenario's own supports,
+        else how the option's crossing differs, e.g. ``"3 piers"``), ``series``
+        (the option named with its crossing, as in charts), ``status``,
+        ``volume_m3`` [m3], ``weight_N`` [N], ``reference_volume_m3`` [m3] (the
+        optimum of the option's own crossing: a form on extra piers is set against
+        an optimum on them too), ``ratio_to_reference`` [-], ``normalised_volume``
+        [-] (volume sigma / (deck_load span^2)), ``tension_volume_m3``,
+        ``compression_volume_m3`` and ``pier_volume_m3`` (the form's pier shafts)
+        [m3], ``seconds`` [s], ``message``.  Volumes of
         options that did not solve are NaN.
     """
     import pandas as pd

@@ -14,9 +14,11 @@ from typing import Any, Callable, Iterable, Mapping
 
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.errors import InputError
+from bridgeopt.model.limits import checked_number
+from bridgeopt.model.loads import UnitCosts
 from bridgeopt.study.options import REFERENCE, comparison_rows, solve_options
 
-__all__ = ["span_sweep", "height_sweep", "pylon_sweep"]
+__all__ = ["span_sweep", "height_sweep", "pylon_sweep", "pylon_costs"]
 
 
 def _sweep(cases, forms, options, progress, extra):
@@ -121,13 +123,39 @@ def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable
                 progress: Callable[[int, int], None] | None = None):
     """:func:`span_sweep` for each pylon count (passed to the forms as ``options["pylons"]``).
 
-    The reference optimum does not depend on the pylon count; its rows are
-    repeated for every count so that each count has its ratio.
+    Pylons on their own piers (the package's cable-stayed forms): with n pylons
+    per span, n - 1 intermediate piers
+    stand in the span, their shafts down to the foundation level
+    (``bridge.foundation_depth``) members of the form.  Each count is its own
+    crossing (``crossing`` ``"2 piers"``), and each form is set against the
+    reference optimum on the same piers (``reference_volume_m3``).  The rows of
+    the scenario's plain reference (no intermediate pier) are repeated for every
+    count.  A form whose intermediate pylons the structure itself carries
+    (:data:`bridgeopt.study.LEGS_FORM`, after :func:`bridgeopt.study.register_legs`)
+    stands on the plain crossing and is set against its plain reference.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The base scenario.
+    spans : iterable of float
+        Spans to solve. [m]
+    pylons : iterable of int
+        Pylon counts per span. [-]
+    forms : iterable of str
+    options : mapping, optional
+    keep_proportions : bool
+        Scale rise and depth with the span.
+    progress : callable, optional
+        ``progress(done, total)``.
 
     Returns
     -------
     pandas.DataFrame
-        :func:`span_sweep`'s columns plus ``pylons`` [-].
+        :func:`span_sweep`'s columns plus ``pylons`` [-] and ``foundations``
+        (pier foundations per span in the water: the crossing's own, 1 for
+        repeating spans and 0 between the abutments of a single span, plus one
+        per intermediate pier a form stands on) [-].
     """
     import pandas as pd
 
@@ -144,5 +172,61 @@ def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable
         df = span_sweep(bridge, spans, forms, opts, keep_proportions=keep_proportions,
                         progress=step)
         df.insert(0, "pylons", n)
+        own = 1 if bridge.arrangement == "repeating" else 0
+        if len(df):
+            # pier foundations: the crossing's own, and one per intermediate pier a form
+            # stands on (none for pylons carried by the structure itself)
+            df["foundations"] = [own + (n - 1 if c else 0) for c in df["crossing"]]
         frames.append(df)
     return pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
+
+
+def pylon_costs(table, *, costs: UnitCosts | None = None, foundation_cost: float = 0.0):
+    """Volume and cost of superstructure, piers and foundations, per form and pylon count.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        :func:`pylon_sweep` output.
+    costs : UnitCosts, optional
+        Prices of tension and compression elements per m3 (default 1 each).
+        [currency/m3]
+    foundation_cost : float
+        Price of one pier foundation, in the currency of ``costs``, in [0, 1e15].
+        [currency]
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per solved form, span and pylon count: ``span_m``, ``option``,
+        ``pylons``, ``crossing``, ``foundations`` [-], ``superstructure_volume_m3``,
+        ``pier_volume_m3``, ``volume_m3`` (their sum) [m3],
+        ``superstructure_cost``, ``pier_cost``, ``foundation_cost`` and ``cost``
+        (their sum) [currency], ``reference_volume_m3`` (the optimum of the same
+        crossing) [m3] and ``cheapest`` (the least cost of its form and span).
+    """
+    import pandas as pd
+
+    costs = UnitCosts() if costs is None else costs
+    if not isinstance(costs, UnitCosts):
+        raise InputError("costs", costs, "a UnitCosts (prices per m3)")
+    price = checked_number("foundation_cost", foundation_cost, low=0.0, high=1e15,
+                           unit="currency per foundation", zero_ok=True)
+    rows = table[(table["option"] != REFERENCE) & (table["status"] == "optimal")]
+    out = pd.DataFrame({
+        "span_m": rows["span_m"], "option": rows["option"], "pylons": rows["pylons"],
+        "crossing": rows.get("crossing", ""), "foundations": rows["foundations"],
+        "superstructure_volume_m3": rows["volume_m3"] - rows["pier_volume_m3"],
+        "pier_volume_m3": rows["pier_volume_m3"], "volume_m3": rows["volume_m3"],
+    }).reset_index(drop=True)
+    tension = rows["tension_volume_m3"].to_numpy(float)
+    compression = rows["compression_volume_m3"].to_numpy(float)
+    pier = rows["pier_volume_m3"].to_numpy(float)
+    out["superstructure_cost"] = tension * costs.tension + (compression - pier) * costs.compression
+    out["pier_cost"] = pier * costs.compression
+    out["foundation_cost"] = out["foundations"].to_numpy(float) * price
+    out["cost"] = out["superstructure_cost"] + out["pier_cost"] + out["foundation_cost"]
+    out["reference_volume_m3"] = rows["reference_volume_m3"].to_numpy(float)
+    least = out.groupby(["span_m", "option"])["cost"].transform("min")
+    out["cheapest"] = out["cost"] <= least * (1 + 1e-12)
+    return out

@@ -4,6 +4,13 @@ Each function takes a table from :mod:`bridgeopt.study.options` (span, height or
 pylon sweep) and returns a :class:`plotly.graph_objects.Figure`.  Options that
 did not solve at some point are marked there ("impossible" regions shaded),
 never drawn as if they had a volume.
+
+A form is only ever drawn against the reference optimum of its own crossing: a
+series on other supports than the scenario's (the ``crossing`` column, e.g.
+intermediate pylons on their own piers) is named with its crossing in the legend
+("cable-stayed fan (2 piers)") and gets that crossing's reference as its own
+dotted line ("reference optimum (2 piers)"); the line named "reference
+optimum" alone is the scenario's own crossing.
 """
 
 from __future__ import annotations
@@ -12,19 +19,28 @@ import math
 
 import numpy as np
 
-from bridgeopt.workbook.plots import PALETTE, option_style
+from bridgeopt.workbook.plots import PALETTE, option_style, series_name
 from bridgeopt.study.options import REFERENCE
 
 __all__ = ["span_volume_figure", "ratio_figure", "height_figure", "pylon_figure",
-           "COMMON_PRACTICE_BANDS"]
+           "pylon_cost_figure", "COMMON_PRACTICE_BANDS"]
 
-#: Span-to-height ratios common in practice (from memory, not from a code):
-#: (label, low, high, colour key) with low/high as span / height above the deck.
+#: Ratios of built bridges (common practice figures, not from a code):
+#: (label, low, high, colour key) with low/high as span / height.
 COMMON_PRACTICE_BANDS = (
-    ("cable-stayed pylon height above deck: span/5 to span/4 (common practice, from memory)",
-     4.0, 5.0, "band"),
-    ("suspension sag: span/12 to span/8 (common practice, from memory)", 8.0, 12.0, "band2"),
+    ("built cable-stayed bridges: span / pylon height above deck 3.4 to 4.9 (common practice)",
+     3.4, 4.9, "band"),
+    ("built suspension bridges: span / sag 8.5 to 13.5 (common practice)", 8.5, 13.5, "band2"),
 )
+
+
+def _crossing_of(table, name) -> str:
+    """The crossing of option ``name`` in ``table`` (its first solved row's), or ``""``."""
+    if "crossing" not in table:
+        return ""
+    rows = table[(table["option"] == name) & (table["status"] == "optimal")]
+    found = [c for c in rows["crossing"] if isinstance(c, str) and c]
+    return found[0] if found else ""
 
 
 def _base(title, height=420):
@@ -76,8 +92,8 @@ def _lines(fig, table, x: str, y: str, names, hover: str, offset: int = 0) -> No
         style = option_style(i + offset)
         fig.add_trace(go.Scatter(
             x=list(rows[x]), y=[None if not math.isfinite(v) else float(v) for v in yv],
-            mode="lines+markers", name=name, line=style,
-            marker={"color": style["color"], "size": 6},
+            mode="lines+markers", name=series_name(name, _crossing_of(table, name)),
+            line=style, marker={"color": style["color"], "size": 6},
             hovertext=[hover.format(**r) for r in rows.to_dict("records")], hoverinfo="text"))
 
 
@@ -89,37 +105,41 @@ def _unavailable_note(fig, table) -> None:
                            yanchor="bottom", font={"size": 11})
 
 
-def _own_support_references(fig, table, names) -> None:
-    """Thin dotted lines: the reference optimum on the supports of forms that add their own.
+def _own_support_references(fig, table, names, x: str = "normalised_span",
+                            y: str = "normalised_volume") -> None:
+    """Dotted lines: the reference optimum of each crossing other than the scenario's own.
 
-    A form on extra piers (intermediate pylons) or with anchored pylon tops is set
-    against the optimum with those supports (``reference_volume_m3``); drawn here
-    so that no form ever seems to beat "the" least volume.  One line per distinct
-    set of such references.
+    A form on extra piers (intermediate pylons) is its own crossing, set against
+    the optimum with those supports (``reference_volume_m3``); drawn here and
+    named "reference optimum (2 piers)", so that no form ever seems to beat "the"
+    least volume.  One line per crossing.
     """
     import plotly.graph_objects as go
 
     if "reference_volume_m3" not in table:
         return
-    plain = table[table["option"] == REFERENCE].set_index("span_m")["volume_m3"]
-    drawn: list[tuple] = []
-    for i, name in enumerate(names):
+    if "crossing" not in table:   # a table without crossings: compare with the plain optimum
+        plain = table[table["option"] == REFERENCE].set_index(x)["volume_m3"]
+        table = table.copy()
+        ref = plain.reindex(table[x]).to_numpy(float)
+        own = ~np.isclose(table["reference_volume_m3"].to_numpy(float), ref, rtol=1e-9)
+        table["crossing"] = np.where(own & (table["option"] != REFERENCE), "own supports", "")
+    drawn: set = set()
+    for name in names:
         rows = table[(table["option"] == name) & (table["status"] == "optimal")]
-        rows = rows.sort_values("normalised_span")
+        rows = rows[rows["crossing"].astype(str) != ""].sort_values(x)
         if rows.empty or name == REFERENCE:
             continue
+        crossing = _crossing_of(table, name)
+        if crossing in drawn:
+            continue
+        drawn.add(crossing)
         ref = rows["reference_volume_m3"].to_numpy(float)
-        same = np.isclose(ref, plain.reindex(rows["span_m"]).to_numpy(float), rtol=1e-9)
-        if same.all():
-            continue
-        key = tuple(np.round(ref, 6))
-        if key in drawn:
-            continue
-        drawn.append(key)
-        scale = (rows["normalised_volume"] / rows["volume_m3"]).to_numpy(float)
+        scale = (rows[y] / rows["volume_m3"]).to_numpy(float) if y != "volume_m3" else 1.0
         fig.add_trace(go.Scatter(
-            x=list(rows["normalised_span"]), y=list(ref * scale), mode="lines",
-            name=f"reference optimum on the supports of {name}",
+            x=list(rows[x]), y=list(ref * scale), mode="lines",
+            name=(f"{REFERENCE} on the supports of {name}" if crossing == "own supports"
+                  else series_name(REFERENCE, crossing)),
             line={"color": option_style(0)["color"], "dash": "dot", "width": 1},
             hoverinfo="skip"))
 
@@ -197,7 +217,9 @@ def ratio_figure(table, x: str = "normalised_span", *, title: str | None = None,
             style = option_style(1 + i)
             fig.add_trace(go.Scatter(x=list(rows[x]), y=list(rows["ratio_to_reference"]
                                                              .where(rows["status"] == "optimal")),
-                                     mode="lines+markers", name=f"{name}, {n} pylon(s)",
+                                     mode="lines+markers",
+                                     name=series_name(f"{name}, {n} pylon(s)",
+                                                      _crossing_of(rows, name)),
                                      line=style))
     else:
         _lines(fig, table[table["option"] != REFERENCE], x, "ratio_to_reference", forms,
@@ -242,6 +264,7 @@ def height_figure(table, *, title: str | None = None, normalised: bool = False):
     _lines(fig, table, "span_to_rise", y, names,
            "{option}<br>rise {rise_m:,.0f} m (span/{span_to_rise:.3g})<br>"
            "volume {volume_m3:,.4g} m3<br>{status}")
+    _own_support_references(fig, table, names, "span_to_rise", y)
     _mark_impossible(fig, table, "span_to_rise", names)
     fig.update_xaxes(title_text="span / allowed rise above deck [-] (lower structure to the "
                                 "right)")
@@ -275,16 +298,76 @@ def pylon_figure(table, *, title: str | None = None):
                              y=list(ref["volume_m3"].where(ref["status"] == "optimal")),
                              mode="lines+markers", name=REFERENCE, line=option_style(0)))
     forms = table[table["option"] != REFERENCE]
+    drawn: set = set()
     for i, ((name, n), rows) in enumerate(forms.groupby(["option", "pylons"], sort=False)):
         rows = rows.sort_values("span_m")
         if not (rows["status"] == "optimal").any():
             continue
+        crossing = _crossing_of(rows, name)
         fig.add_trace(go.Scatter(x=list(rows["span_m"]),
                                  y=list(rows["volume_m3"].where(rows["status"] == "optimal")),
-                                 mode="lines+markers", name=f"{name}, {n} pylon(s)",
+                                 mode="lines+markers",
+                                 name=series_name(f"{name}, {n} pylon(s)", crossing),
                                  line=option_style(1 + i)))
+        if crossing and crossing not in drawn and "reference_volume_m3" in rows:
+            drawn.add(crossing)
+            ok = rows[rows["status"] == "optimal"]
+            fig.add_trace(go.Scatter(x=list(ok["span_m"]), y=list(ok["reference_volume_m3"]),
+                                     mode="lines", name=series_name(REFERENCE, crossing),
+                                     line={"color": option_style(0)["color"], "dash": "dot",
+                                           "width": 1}))
     _unavailable_note(fig, table)
     fig.update_xaxes(title_text="span [m]")
     fig.update_yaxes(title_text="volume [m3]", type="log")
     return fig
 
+
+
+def pylon_cost_figure(costs, span: float | None = None, *, title: str | None = None,
+                      currency: str = "cost unit"):
+    """Stacked cost of superstructure, piers and foundations against the pylon count.
+
+    Parameters
+    ----------
+    costs : pandas.DataFrame
+        :func:`bridgeopt.study.trends.pylon_costs` output.
+    span : float, optional
+        The span shown (default: the largest in the table). [m]
+    title : str, optional
+        Heading (default: "Cost by pylon count, <span> m span").
+    currency : str
+        Label of the currency unit.
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        One group of stacked bars per form, one bar per pylon count; the
+        cheapest count of each form is marked.
+    """
+    import plotly.graph_objects as go
+
+    fig = _base(title or "", height=440)
+    if not len(costs):
+        fig.add_annotation(text="no form solved", showarrow=False, xref="paper",
+                           yref="paper", x=0.5, y=0.5)
+        return fig
+    span = float(costs["span_m"].max()) if span is None else float(span)
+    rows = costs[costs["span_m"] == span].sort_values(["option", "pylons"])
+    labels = [[o for o in rows["option"]],
+              [series_name(f"{n} pylon(s)", c) for n, c in zip(rows["pylons"], rows["crossing"])]]
+    parts = (("superstructure_cost", "superstructure", PALETTE["tension"]),
+             ("pier_cost", "pier shafts", PALETTE["compression"]),
+             ("foundation_cost", "foundations", PALETTE["deck"]))
+    for column, name, colour in parts:
+        fig.add_trace(go.Bar(x=labels, y=list(rows[column]), name=name, marker_color=colour))
+    best = rows[rows["cheapest"]]
+    fig.add_trace(go.Scatter(
+        x=[list(best["option"]), [series_name(f"{n} pylon(s)", c)
+                                  for n, c in zip(best["pylons"], best["crossing"])]],
+        y=list(best["cost"] * 1.04), mode="markers+text", text=["cheapest"] * len(best),
+        textposition="top center", marker={"symbol": "triangle-down", "size": 10,
+                                           "color": PALETTE["support"]},
+        name="cheapest pylon count"))
+    fig.update_layout(barmode="stack", title=title or f"Cost by pylon count, {span:,.0f} m span")
+    fig.update_yaxes(title_text=f"cost [{currency}]")
+    return fig

@@ -69,7 +69,7 @@ class Explorer:
 
     def __init__(self, *, span: float = 1800.0, rise: float = 360.0, depth: float = 180.0,
                  deck_load: float = 2.0e5, material: str = "steel", arrangement: str = "single",
-                 form: str = "suspension", pylons: int = 2, divisions: int = 30,
+                 form: str = "suspension", pylons: int = 1, divisions: int = 30,
                  traffic: str = "none", traffic_load: float = 8.0e4,
                  name: str = "option study") -> None:
         import ipywidgets as w
@@ -97,7 +97,7 @@ class Explorer:
                                       description="arrangement", style=style, layout=wide),
             "form": w.Dropdown(options=list(forms) if form in forms else list(forms) + [form],
                                value=form, description="form", style=style, layout=wide),
-            "pylons": slider(w.IntSlider, pylons, 1, 4, 1, "pylons per span"),
+            "pylons": slider(w.IntSlider, pylons, 1, 4, 1, "pylons per span (on piers)"),
             "traffic": w.Dropdown(options=list(study.TRAFFIC), value=traffic,
                                   description="traffic cases", style=style, layout=wide),
             "traffic_load": slider(w.FloatSlider, traffic_load / 1e3, 0.0, 1000.0, 10.0,
@@ -167,9 +167,10 @@ class Explorer:
             other.message + "; showing the reference optimum only.", "note")
         self.results = results
         self.comparison = study.comparison_table(bridge, results)
-        self.quantities = {n: study.quantities(o.design) for n, o in results.items()
+        drawn = study.options_by_series(results, self.comparison)
+        self.quantities = {n: study.quantities(o.design) for n, o in drawn.items()
                            if o.design is not None}
-        self.figure = plots.options_figure(results, title=f"{bridge.name}: {bridge.span:,.0f} m "
+        self.figure = plots.options_figure(drawn, title=f"{bridge.name}: {bridge.span:,.0f} m "
                                            f"span, {bridge.material.name}")
         self._traffic(bridge)
         self.bar_figure = plots.ratio_bar(self.comparison)
@@ -204,7 +205,7 @@ class Explorer:
         parts = []
         for _, r in self.comparison.iterrows():
             if r["status"] == "optimal":
-                parts.append(f"<b>{r['option']}</b>: {r['volume_m3']:,.5g} m3, "
+                parts.append(f"<b>{r['series']}</b>: {r['volume_m3']:,.5g} m3, "
                              f"{r['weight_N'] / 1e3:,.5g} kN, ratio {r['ratio_to_reference']:.3g}")
         if self.cases is not None:
             design, single = self.cases
@@ -218,9 +219,11 @@ class Explorer:
     def _tables(self) -> list:
         from IPython.display import HTML
 
-        cols = ["option", "status", "volume_m3", "weight_N", "ratio_to_reference"]
+        cols = ["series", "status", "volume_m3", "weight_N", "reference_volume_m3",
+                "ratio_to_reference"]
         out = [HTML("<b>Options</b>"), self.comparison[cols].style.format(
-            {"volume_m3": "{:,.5g}", "weight_N": "{:,.5g}", "ratio_to_reference": "{:.3g}"},
+            {"volume_m3": "{:,.5g}", "weight_N": "{:,.5g}", "reference_volume_m3": "{:,.5g}",
+             "ratio_to_reference": "{:.3g}"},
             na_rep="-").hide(axis="index")]
         for name, q in self.quantities.items():
             # the data are in N; shown in kN and MN

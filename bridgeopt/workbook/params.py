@@ -34,6 +34,9 @@ RANGES: dict[str, Any] = {
     "deck_load": (*DECK_LOAD, "N/m"),
     "divisions": (0, 240, "(even; 0 keeps the scenario file's)"),
     "pylons": (1, 4, "(pylons per span)"), "pylon_counts": (1, 4, "(pylons per span)"),
+    "foundation_depth": (0.0, HEIGHT_PER_SPAN * SPAN[1], "m (below the deck)"),
+    "foundation_cost": (0.0, 1e15, "(currency per foundation)"),
+    "steel_cost": (1e-9, 1e15, "(currency per m3)"),
     "material": tuple(PRESETS), "arrangement": ARRANGEMENTS,
 }
 _FORM_NAMES = ("form", "forms")

@@ -22,7 +22,9 @@ from typing import Mapping
 import numpy as np
 
 __all__ = ["PALETTE", "OPTION_COLOURS", "design_figure", "options_figure", "ratio_bar",
-           "cases_figure", "option_style"]
+           "cases_figure", "option_style", "series_name"]
+
+from bridgeopt.study.options import series_name  # noqa: E402  (re-exported for charts)
 
 #: Colours of the workbook's drawings (own choice; blue/orange differ in hue and lightness).
 PALETTE = {
@@ -251,7 +253,10 @@ def _wrap(text: str, width: int = 90) -> str:
 
 
 def ratio_bar(table, *, title: str | None = "Volume against the reference optimum"):
-    """Bar chart of each option's volume ratio to the reference optimum.
+    """Bar chart of each option's volume ratio to the reference optimum of its own crossing.
+
+    An option on other supports than the scenario's is named with its crossing
+    ("cable-stayed fan (1 pier)"); its ratio is to that crossing's optimum.
 
     Parameters
     ----------
@@ -271,8 +276,11 @@ def ratio_bar(table, *, title: str | None = "Volume against the reference optimu
     ok = table[table["status"] == "optimal"]
     colours = [option_style(i)["color"] for i in range(len(table))]
     colour_of = dict(zip(table["option"], colours))
+    crossings = ok["crossing"] if "crossing" in ok else [""] * len(ok)
     fig = go.Figure(go.Bar(
-        x=list(ok["option"]), y=list(ok["ratio_to_reference"]),
+        x=[series_name(o, c if isinstance(c, str) else "") for o, c in zip(ok["option"],
+                                                                          crossings)],
+        y=list(ok["ratio_to_reference"]),
         marker_color=[colour_of[o] for o in ok["option"]],
         text=[f"{r:.3g}" if math.isfinite(r) else "" for r in ok["ratio_to_reference"]],
         textposition="outside", name="volume / reference volume", width=0.5,

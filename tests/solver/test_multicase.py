@@ -274,7 +274,10 @@ def test_no_curved_member_enters_the_channel():
 
 def test_multi_case_design_keeps_clear_of_the_channel_and_uses_the_given_pier():
     sc = load_scenario(ROOT / "studies" / "scenarios" / "traffic_cases.toml")
-    small = dataclasses.replace(sc, bridge=dataclasses.replace(sc.bridge, divisions=10),
+    # the pier's foot at the envelope's bottom, 48 m below the deck (the foundation level
+    # is its own input since issue 11)
+    small = dataclasses.replace(sc, bridge=dataclasses.replace(sc.bridge, divisions=10,
+                                                               foundation_depth=48.0),
                                 cases=sc.cases[:2], channels=(
                                     ((144.0, -48.0), (384.0, -48.0), (384.0, -24.0),
                                      (144.0, -24.0)),), piers=(96.0,))

@@ -30,7 +30,9 @@ from bridgeopt.files.proposal import proposal_from_dict, read_proposal
 from bridgeopt.files.scenario import parse_scenario
 
 BRIDGE = {"name": "Sallow Ford", "bridge": {"span": 400.0, "rise": 100.0, "depth": 40.0,
-                                            "deck_load": 1.0e5, "divisions": 10},
+                                            "deck_load": 1.0e5, "divisions": 10,
+                                            # the pier's foot at the envelope's bottom
+                                            "foundation_depth": 40.0},
           "material": {"preset": "steel"}}   # a fictional crossing
 BRACKET = {"name": "bracket", "domain": {"x": [0.0, 4.0], "z": [0.0, 2.0], "spacing": 0.5},
            "material": {"preset": "steel"},

@@ -41,7 +41,13 @@ def test_design_figure_draws_every_member_in_its_sense_colour(design):
 def test_half_model_is_drawn_over_the_whole_span(design):
     fig = plots.design_figure(design)
     xs = np.array([x for t in fig.data if t.mode == "lines" for x in t.x if x is not None])
-    assert xs.min() == pytest.approx(0.0, abs=1e-9) and xs.max() == pytest.approx(1200.0)
+    # the crossing: the 1200 m span and its back spans to the anchor points (issue 11),
+    # 0.4 x 1200 m clipped to whole 100 m grid steps: 400 m each side
+    back = design.problem.domain.bounds[0]
+    assert back == pytest.approx(-400.0)
+    assert xs.min() >= back - 1e-9 and xs.max() <= 1200.0 - back + 1e-9
+    assert xs.max() - 600.0 == pytest.approx(600.0 - xs.min())
+    assert xs.min() <= 1e-9 and xs.max() >= 1200.0 - 1e-9
 
 
 def test_line_width_grows_with_force(design):
@@ -117,7 +123,9 @@ def test_height_chart_shades_the_common_practice_bands():
     table["span_to_rise"] = table["span_m"] / table["rise_m"]
     fig = charts.height_figure(table)
     rects = {(s.x0, s.x1) for s in fig.layout.shapes if s.type == "rect"}
-    assert {(4.0, 5.0), (8.0, 12.0)} <= rects
+    # built bridges' ratios given in issue 11 (common practice): span / pylon height above
+    # the deck 3.4 to 4.9 for cable-stayed, span / sag 8.5 to 13.5 for suspension
+    assert {(3.4, 4.9), (8.5, 13.5)} <= rects
     texts = " ".join(a.text or "" for a in fig.layout.annotations)
     assert texts.count("common practice") == 2
 
