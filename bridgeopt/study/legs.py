@@ -135,6 +135,12 @@ def solve_legs(bridge: BridgeScenario, options: Mapping[str, Any]) -> Design:
 
 
 def register_legs() -> str:
-    """Add the form to the study's form registry; return its name, :data:`NAME`."""
+    """Add the form to the study's form registry.
+
+    Returns
+    -------
+    str
+        Its name in the study, :data:`NAME`.
+    """
     register_form(NAME, solve_legs)
     return NAME
