@@ -286,3 +286,12 @@ def test_a_missing_key_reads_missing_not_none(layout, field):
     with pytest.raises(InputError) as err:
         proposal_from_dict(layout)
     assert err.value.field == field and str(err.value).startswith(f"{field} = <missing> is")
+
+
+def test_an_unknown_form_name_in_a_study_says_so_with_the_known_names():
+    from bridgeopt import study
+
+    option = study.solve_option(_bridge(divisions=8), "cable staid fan")
+    assert option.status == "unavailable"
+    assert "not a form bridgeopt knows" in option.message
+    assert "did you mean 'cable-stayed fan'?" in option.message

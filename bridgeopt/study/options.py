@@ -21,6 +21,7 @@ column name.  Nothing here draws (see :mod:`bridgeopt.workbook.plots`).
 from __future__ import annotations
 
 import dataclasses
+import difflib
 import math
 import time
 from dataclasses import dataclass
@@ -106,9 +107,14 @@ def solve_option(bridge: BridgeScenario, name: str,
     elif name in FORM_SOLVERS:
         fn = FORM_SOLVERS[name]
         args = (bridge, dict(options or {}))
-    else:
+    elif name in KNOWN_FORMS:
         return Option(name, "unavailable", None, f"{name}: not available in this version "
                       "(no solver registered)")
+    else:
+        close = difflib.get_close_matches(str(name), list(available_forms()), n=1)
+        return Option(name, "unavailable", None, f"{name}: not a form bridgeopt knows; the "
+                      "forms are " + ", ".join(map(repr, available_forms()))
+                      + (f" (did you mean {close[0]!r}?)" if close else ""))
     try:
         design = _quiet_solve(fn, *args)
     except (SolveError, InputError) as err:
