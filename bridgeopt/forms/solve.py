@@ -11,9 +11,10 @@ tower height, rise, or every cable or rib node's height) with
 
 from __future__ import annotations
 
+import dataclasses
 import logging
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -22,14 +23,17 @@ from bridgeopt.cautions import CAUTIONS
 from bridgeopt.solver.design import Design
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.frame import Frame, size_frame
-from bridgeopt.geometry.optimize import optimize_geometry
+from bridgeopt.geometry.optimize import NodeMoves, optimize_geometry
 from bridgeopt.solver.layout import optimize_layout
 from bridgeopt.model.materials import GRAVITY
-from bridgeopt.forms.build import build_form, form_problem, self_weight_sag
+from bridgeopt.forms.build import build_form, form_problem, self_weight_sag, single_element_reach
 from bridgeopt.forms.builder import deck_level
-from bridgeopt.forms.specs import FormSpec, ReferenceForm, SuspensionForm
+from bridgeopt.forms.specs import (ArchForm, CableStayedForm, FormSpec, ReferenceForm,
+                                   SuspensionForm)
 
-__all__ = ["FormResult", "solve_form", "group_quantities", "GROUPS"]
+__all__ = ["FormResult", "solve_form", "group_quantities", "on_mirror_line", "start_spec",
+           "dimension_lines",
+           "GROUPS"]
 
 log = logging.getLogger(__name__)
 
@@ -66,10 +70,12 @@ def group_quantities(design: Design, groups=(), *, by_sense: bool = False) -> di
     dict
         ``{group: {"members": int, "length_m": float, "volume_m3": float,
         "weight_N": float, "largest_force_N": float}}`` (keys ``(group, sense)``
-        with ``by_sense``).  Lengths (along the centrelines) [m], volumes [m3] and
-        weights [N] count ``design.copies`` copies of the model; member counts are
-        per model; the largest force [N] is the largest axial force (tension
-        positive).
+        with ``by_sense``).  Whole-structure figures: lengths (along the
+        centrelines) [m], volumes [m3] and weights [N] count ``design.copies``
+        copies of the model, except that a member on a mirror line (shared by the
+        model and its mirror image) counts its length once; the largest force [N]
+        is the largest axial force of a whole member (tension positive; twice the
+        model's force on a mirror line); member counts are per model.
     """
     m = design.members
     prob = design.problem
@@ -88,11 +94,41 @@ def group_quantities(design: Design, groups=(), *, by_sense: bool = False) -> di
         names = list(groups) + [g for g in dict.fromkeys(group.tolist()) if g not in groups]
         selections = [(g, group == g) for g in names]
     c = design.copies
-    return {key: {"members": int(sel.sum()), "length_m": float(length[sel].sum()) * c,
+    # a member on a mirror line is one member of the whole structure, half of it in each
+    # model: its length counts once and its force twice
+    on = on_mirror_line(design)
+    length = np.where(on, length, length * c)
+    force = np.where(on, force * 2.0, force)
+    return {key: {"members": int(sel.sum()), "length_m": float(length[sel].sum()),
                   "volume_m3": float(volume[sel].sum()) * c,
                   "weight_N": float(weight[sel].sum()) * c,
                   "largest_force_N": float(force[sel].max()) if sel.any() else 0.0}
             for key, sel in selections}
+
+
+def on_mirror_line(design: Design) -> np.ndarray:
+    """True for each member whose two ends lie on one mirror line of the design's problem.
+
+    Parameters
+    ----------
+    design : Design
+        A solved design (its nodes [m], members and problem).
+
+    Returns
+    -------
+    ndarray of bool, shape (members,)
+        Such a member is shared by the model and its mirror image: the model
+        carries half its force over its whole length.
+    """
+    m, prob = design.members, design.problem
+    out = np.zeros(len(m.start), dtype=bool)
+    if prob is None or not prob.mirror_lines:
+        return out
+    tol = 1e-6 * max(1.0, float(np.ptp(design.nodes[:, 0])) if len(design.nodes) else 1.0)
+    xa, xb = design.nodes[m.start, 0], design.nodes[m.end, 0]
+    for x in prob.mirror_lines:
+        out |= (np.abs(xa - x) <= tol) & (np.abs(xb - x) <= tol)
+    return out
 
 
 def _curve_length(curve: np.ndarray) -> float:
@@ -124,6 +160,70 @@ def _geometry(design: Design, form_type: str, deck_z: float) -> dict:
     return out
 
 
+def dimension_lines(dimensions: dict) -> list[str]:
+    """Text lines of the ratios and anchor moves of :attr:`FormResult.dimensions`.
+
+    Parameters
+    ----------
+    dimensions : dict
+        ``FormResult.dimensions``.
+
+    Returns
+    -------
+    list of str
+    """
+    d = dimensions
+    out = [f"  {k.replace('_', ' ')}: {d[k]:.4g}" for k in
+           ("span_to_height", "sag_ratio", "span_to_sag", "rise_ratio", "span_to_rise") if k in d]
+    if "anchor_move_largest_m" in d:
+        out.append(f"  stay anchors moved from the {d['start_pattern']} pattern (at its best "
+                   f"height) by up to {d['anchor_move_largest_m']:.4g} m (mean "
+                   f"{d['anchor_move_mean_m']:.4g} m); deck points by up to "
+                   f"{d['deck_point_move_largest_m']:.4g} m")
+    if "anchor_heights_m" in d:
+        out.append("  anchor heights above the deck [m]: "
+                   + ", ".join(f"{z:.4g}" for z in d["anchor_heights_m"]))
+    return out
+
+
+def _stay_anchors(design: Design) -> tuple[np.ndarray, np.ndarray]:
+    """(deck x, anchor height z) of every stay, by deck x. [m]"""
+    m, xz = design.members, design.nodes
+    sel = np.nonzero(m.group == "stay")[0]
+    a, b = xz[m.start[sel]], xz[m.end[sel]]
+    top = np.where((a[:, 1] >= b[:, 1])[:, None], a, b)
+    low = np.where((a[:, 1] >= b[:, 1])[:, None], b, a)
+    order = np.lexsort((top[:, 1], low[:, 0]))
+    return low[order, 0], top[order, 1]
+
+
+def _dimensions(design: Design, pattern: Design, spec, bridge: BridgeScenario,
+                geometry: dict) -> dict:
+    """Ratios and per-stay or per-node dimensions of the final form (FormResult.dimensions)."""
+    out: dict = {}
+    deck_z = deck_level(design.problem)[2]
+    if spec.type == "cable-stayed" and "pylon_height" in geometry:
+        out["span_to_height"] = bridge.span / spec.pylons / geometry["pylon_height"]
+        x, z = _stay_anchors(design)
+        out["stay_deck_x_m"] = x.tolist()
+        out["anchor_heights_m"] = (z - deck_z).tolist()
+        x0, z0 = _stay_anchors(pattern)
+        out["start_pattern"] = spec.pattern
+        if len(z0) == len(z) and len(z):
+            moved = np.hypot(x - x0, z - z0)
+            out["anchor_move_largest_m"] = float(np.abs(z - z0).max())
+            out["anchor_move_mean_m"] = float(np.abs(z - z0).mean())
+            out["deck_point_move_largest_m"] = float(np.abs(x - x0).max())
+            out["stay_end_move_largest_m"] = float(moved.max())
+    if spec.type == "suspension" and geometry.get("sag"):
+        out["sag_ratio"] = geometry["sag"] / bridge.span
+        out["span_to_sag"] = bridge.span / geometry["sag"]
+    if spec.type == "arch" and geometry.get("rise"):
+        out["rise_ratio"] = geometry["rise"] / bridge.span
+        out["span_to_rise"] = bridge.span / geometry["rise"]
+    return out
+
+
 @dataclass(frozen=True)
 class FormResult:
     """A solved bridge form set against the reference optimum of the same scenario.
@@ -151,6 +251,15 @@ class FormResult:
         Main dimensions of the final form: ``pylon_height``, ``tower_height``,
         ``sag`` or ``rise``, and ``deck_panel``, the largest distance between
         the deck's loaded nodes (where stays, hangers or columns hold it). [m]
+    dimensions : dict
+        Ratios and per-member dimensions of the final form: cable-stayed
+        ``span_to_height`` [-] (pylon spacing over pylon height),
+        ``anchor_heights_m`` and ``stay_deck_x_m`` (per stay of the model, by deck
+        x) [m], ``start_pattern``, and how far the optimized anchors moved from
+        the pattern at its best pylon height, ``anchor_move_largest_m``,
+        ``anchor_move_mean_m``, ``deck_point_move_largest_m`` [m]; suspension
+        ``sag_ratio`` and ``span_to_sag`` [-]; arch ``rise_ratio`` and
+        ``span_to_rise`` [-].
     """
 
     spec: FormSpec
@@ -163,6 +272,7 @@ class FormResult:
     ratio: float
     quantities: dict
     geometry: dict
+    dimensions: dict = field(default_factory=dict)
 
     @property
     def form_type(self) -> str:
@@ -184,6 +294,7 @@ class FormResult:
                  f" m3; ratio {self.ratio:.4f}"]
         for g, q in self.quantities.items():
             lines.append(f"  {g}: {q['members']} members, {q['volume_m3']:.6g} m3")
+        lines.extend(dimension_lines(self.dimensions))
         lines.append(CAUTIONS)
         return "\n".join(lines)
 
@@ -218,20 +329,22 @@ def _size_start(frame: Frame, spec) -> Design:
                 raise SolveError(
                     "span-limit",
                     f"the {spec.type} form cannot carry its loads: its {line[2]} of "
-                    f"{np.ptp(z):.6g} m is close to the least that carries its own weight over "
-                    f"{span:.6g} m, k L^2/8 = {need:.6g} m (k = rho*g/sigma), and the hangers "
-                    "or columns add more; raise it, shorten the span or use a stronger, "
-                    "lighter material (no span exceeds pi*sigma/(rho*g) = "
-                    f"{math.pi / problem.k(line[1]):.6g} m)") from None
+                    f"{np.ptp(z):.6g} m is close to the least with which an equal-strength "
+                    f"{line[0]} carries its own weight over {span:.6g} m, ln(sec(k L/2))/k = "
+                    f"{need:.6g} m (k = rho*g/sigma), and the deck, hangers or columns need "
+                    "more; raise it, shorten the span or use a stronger, lighter material (no "
+                    f"single equal-strength {line[0]} spans more than pi*sigma/(rho*g) = "
+                    f"{single_element_reach(problem, line[1]):.6g} m; a structure of several "
+                    "members can)") from None
         if part[i] < REACH_WARNING:
             raise
         raise SolveError(
             "span-limit",
             f"the {spec.type} form cannot carry its loads: its {frame.group[i]} members reach "
             f"up to {lx[i]:.6g} m horizontally, {100 * part[i]:.0f}% of the reach "
-            f"pi*sigma/(rho*g) = {math.pi / k[i]:.6g} m of an equal-strength element, and an "
-            "element that long sags too far under its own weight to carry the deck as well; "
-            "shorten the reach (more pylons, closer hangers, a shorter span), steepen it (a "
+            f"pi*sigma/(rho*g) = {math.pi / k[i]:.6g} m of a single equal-strength element, "
+            "and an element that long sags too far under its own weight to carry the deck as "
+            "well; shorten the reach (more pylons, closer hangers, a shorter span), steepen it (a "
             "taller pylon, more sag or rise) or use a stronger, lighter material") from None
 
 
@@ -270,13 +383,46 @@ def _funicular_search(bridge, spec, problem, moves, start: Design) -> Design:
     return found[value] if found[value].volume < start.volume else start
 
 
-def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
-    """The form after geometry optimization, never heavier than ``start``.
+def _polish(frame: Frame, moves: NodeMoves | None, best: Design, label: str) -> Design:
+    """optimize_geometry of ``frame`` over ``moves``; ``best`` when that is not lighter."""
+    if moves is None or not moves.size:
+        return best
+    try:
+        design = optimize_geometry(frame, moves=moves)
+    except SolveError as err:  # keep the best geometry found so far
+        log.warning("geometry optimization of the %s form stopped: %s", label, err)
+        return best
+    return design if design.volume < best.volume else best
 
-    A funicular cable or rib with a free sag or rise first gets the sag (rise) of
-    the lightest exact funicular (:func:`_funicular_search`); the form's node
-    moves (sag or rise, tower height, or every node with the free shape) then
-    polish it with :func:`~bridgeopt.geometry.optimize.optimize_geometry`.
+
+def start_spec(spec: FormSpec) -> FormSpec:
+    """The spec whose frame is the starting pattern of ``spec`` (free stay anchors: the pattern).
+
+    Parameters
+    ----------
+    spec : FormSpec
+        A form spec.
+
+    Returns
+    -------
+    FormSpec
+        ``spec`` with ``anchors = "pattern"`` for a cable-stayed form, else ``spec``.
+    """
+    if isinstance(spec, CableStayedForm) and spec.anchors == "free":
+        return dataclasses.replace(spec, anchors="pattern")
+    return spec
+
+
+def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Design, Design]:
+    """The form after geometry optimization, never heavier than ``start``, and the pattern.
+
+    Stages, each kept only when it is lighter: (1) the starting pattern's own
+    free dimensions (pylon height; or a funicular cable or rib's sag or rise, by
+    :func:`_funicular_search`, then its node moves); (2) every free dimension from
+    there: each stay's anchor height and deck point (cable-stayed, ``anchors =
+    "free"``), or each cable or rib node's height, the tower height and the
+    hanger positions (a free sag or rise with a funicular or parabolic start).
+    Returns (final design, design at the end of stage 1).
     """
     best = start
     if getattr(spec, "shape", None) == "funicular":
@@ -284,12 +430,27 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
         if best is not start:
             value = _geometry(best, spec.type, deck_level(problem)[2])
             frame, moves = build_form(bridge, spec, problem, start=value)
-    try:
-        design = optimize_geometry(frame, moves=moves)
-    except SolveError as err:  # keep the best geometry found so far
-        log.warning("geometry optimization of the %s form stopped: %s", spec.type, err)
-        return best
-    return design if design.volume < best.volume else best
+    best = _polish(frame, moves, best, spec.type)
+    stage1 = best
+    free = None
+    if isinstance(spec, CableStayedForm) and spec.anchors == "free" \
+            and spec.span_to_height is None:
+        free = spec, {"pylon_height": _geometry(best, spec.type, deck_level(problem)[2])
+                      ["pylon_height"]}
+    elif isinstance(spec, SuspensionForm) and spec.shape != "free" and spec.sag_ratio is None \
+            and spec.tower_height is None:
+        free = dataclasses.replace(spec, shape="free"), None
+    elif isinstance(spec, ArchForm) and spec.shape != "free" and spec.rise_ratio is None:
+        free = dataclasses.replace(spec, shape="free"), None
+    if free is not None:
+        value = free[1] or _geometry(best, spec.type, deck_level(problem)[2])
+        try:
+            frame, moves = build_form(bridge, free[0], problem, start=value)
+        except InputError as err:  # pragma: no cover - the same envelope as stage 1
+            log.warning("free dimensions of the %s form not optimized: %s", spec.type, err)
+            return best, stage1
+        best = _polish(frame, moves, best, spec.type)
+    return best, stage1
 
 
 def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
@@ -345,11 +506,11 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
                           weight=ref.weight, reference=ref, reference_volume=ref.volume,
                           ratio=1.0, quantities=group_quantities(ref, GROUPS["reference"]),
                           geometry={})
-    frame, moves = build_form(bridge, spec, problem)
+    frame, moves = build_form(bridge, start_spec(spec), problem)
     start = _size_start(frame, spec)
-    design = start
+    design = pattern = start
     if optimize and moves is not None and moves.size:
-        design = _optimized(bridge, spec, problem, frame, moves, start)
+        design, pattern = _optimized(bridge, spec, problem, frame, moves, start)
     ref = None
     if compare:
         ref = reference or optimize_layout(problem, member_adding=member_adding)
@@ -369,4 +530,5 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
                       ratio=design.volume / ref_volume,
                       quantities=group_quantities(design, GROUPS[getattr(spec, "variant",
                                                                          spec.type)]),
-                      geometry=geometry)
+                      geometry=geometry,
+                      dimensions=_dimensions(design, pattern, spec, bridge, geometry))

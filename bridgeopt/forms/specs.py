@@ -27,6 +27,7 @@ __all__ = ["FORM_TYPES", "ReferenceForm", "CableStayedForm", "SuspensionForm", "
 
 FORM_TYPES = ("reference", "cable-stayed", "suspension", "arch")
 STAY_PATTERNS = ("fan", "semi-fan", "harp")
+ANCHOR_RULES = ("free", "pattern")
 SHAPES = ("funicular", "parabolic", "free")
 ARCH_VARIANTS = ("deck-arch", "through-arch")
 
@@ -107,9 +108,11 @@ class CableStayedForm:
     pylons: int = 1
     span_to_height: float | None = None
     anchor_zone: float | None = None
+    anchors: str = "free"
 
     def __post_init__(self) -> None:
         _choice("form.pattern", self.pattern, STAY_PATTERNS)
+        _choice("form.anchors", self.anchors, ANCHOR_RULES)
         if self.stays is not None:
             _whole("form.stays", self.stays, 1, MAX_PANELS, "stays per side of a pylon")
         _whole("form.pylons", self.pylons, 1, MAX_PYLONS, "pylons per span")
