@@ -32,7 +32,7 @@ from bridgeopt.forms.specs import (ArchForm, CableStayedForm, FormSpec, Referenc
                                    SuspensionForm)
 
 __all__ = ["FormResult", "solve_form", "group_quantities", "on_mirror_line", "start_spec",
-           "dimension_lines",
+           "dimension_lines", "dimension_columns", "DIMENSION_COLUMNS",
            "GROUPS"]
 
 log = logging.getLogger(__name__)
@@ -158,6 +158,40 @@ def _geometry(design: Design, form_type: str, deck_z: float) -> dict:
         z = ends("arch rib")[:, 1]
         out["rise"] = float(z.max() - z.min())
     return out
+
+
+#: Study-table columns of a form's final dimensions: (column, where, key). [m or -]
+DIMENSION_COLUMNS = (("pylon_height_m", "geometry", "pylon_height"),
+                     ("span_to_height", "dimensions", "span_to_height"),
+                     ("anchor_move_largest_m", "dimensions", "anchor_move_largest_m"),
+                     ("tower_height_m", "geometry", "tower_height"),
+                     ("sag_m", "geometry", "sag"),
+                     ("sag_ratio", "dimensions", "sag_ratio"),
+                     ("span_to_sag", "dimensions", "span_to_sag"),
+                     ("rise_m", "geometry", "rise"),
+                     ("rise_ratio", "dimensions", "rise_ratio"))
+
+
+def dimension_columns(design: Design | None) -> dict:
+    """A form design's final dimensions as study-table columns (:data:`DIMENSION_COLUMNS`).
+
+    Parameters
+    ----------
+    design : Design or None
+        A design from :func:`solve_form` (its ``stats["form"]``); anything else
+        gives no columns.
+
+    Returns
+    -------
+    dict
+        ``{column: value}`` for the dimensions the form has; pylon, tower, sag and
+        rise in m, ratios dimensionless.
+    """
+    form = getattr(design, "stats", {}).get("form") if design is not None else None
+    if not isinstance(form, dict):
+        return {}
+    return {col: float(form[where][key]) for col, where, key in DIMENSION_COLUMNS
+            if key in form.get(where, {})}
 
 
 def dimension_lines(dimensions: dict) -> list[str]:
@@ -525,10 +559,13 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
                     "without being sized, which favours the form; use more stays or a closer "
                     "spacing", spec.type, geometry["deck_panel"], bridge.spacing)
     ref_volume = ref.volume if ref is not None else math.nan
+    dimensions = _dimensions(design, pattern, spec, bridge, geometry)
+    # the final dimensions travel with the design, for drawings and study tables
+    design = dataclasses.replace(design, stats={**design.stats, "form": {
+        "type": spec.type, "geometry": geometry, "dimensions": dimensions}})
     return FormResult(spec=spec, design=design, start_volume=start.volume, volume=design.volume,
                       weight=design.weight, reference=ref, reference_volume=ref_volume,
                       ratio=design.volume / ref_volume,
                       quantities=group_quantities(design, GROUPS[getattr(spec, "variant",
                                                                          spec.type)]),
-                      geometry=geometry,
-                      dimensions=_dimensions(design, pattern, spec, bridge, geometry))
+                      geometry=geometry, dimensions=dimensions)
