@@ -417,16 +417,38 @@ def _funicular_search(bridge, spec, problem, moves, start: Design) -> Design:
     return found[value] if found[value].volume < start.volume else start
 
 
+#: Restarts of the node moves while a restart still gains this relative volume. [-]
+RESTART_GAIN = 1e-4
+#: Most restarts of the node moves of one stage.
+RESTARTS = 2
+
+
 def _polish(frame: Frame, moves: NodeMoves | None, best: Design, label: str) -> Design:
-    """optimize_geometry of ``frame`` over ``moves``; ``best`` when that is not lighter."""
+    """optimize_geometry of ``frame`` over ``moves``; ``best`` when that is not lighter.
+
+    The sequential-LP moves stop when a step gains little; they are restarted
+    from where they stopped (the same parameters, bounds shifted by the move
+    made) while a restart gains at least :data:`RESTART_GAIN`.
+    """
     if moves is None or not moves.size:
         return best
-    try:
-        design = optimize_geometry(frame, moves=moves)
-    except SolveError as err:  # keep the best geometry found so far
-        log.warning("geometry optimization of the %s form stopped: %s", label, err)
-        return best
-    return design if design.volume < best.volume else best
+    out = best
+    for _ in range(1 + RESTARTS):
+        try:
+            design = optimize_geometry(frame, moves=moves)
+        except SolveError as err:  # keep the best geometry found so far
+            log.warning("geometry optimization of the %s form stopped: %s", label, err)
+            break
+        gain = 1.0 - design.volume / out.volume
+        if design.volume < out.volume:
+            out = design
+        if gain < RESTART_GAIN or design.nodes.shape != frame.nodes.shape:
+            break
+        p = np.linalg.lstsq(moves.T, (design.nodes - frame.nodes).ravel(), rcond=None)[0]
+        moves = NodeMoves(T=moves.T, lower=np.minimum(moves.lower - p, 0.0),
+                          upper=np.maximum(moves.upper - p, 0.0), names=moves.names)
+        frame = frame.moved(design.nodes)
+    return out
 
 
 def start_spec(spec: FormSpec) -> FormSpec:
