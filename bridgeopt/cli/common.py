@@ -15,7 +15,7 @@ from bridgeopt.files.io import written_by_bridgeopt
 from bridgeopt.files.scenario import Scenario
 from bridgeopt.model.materials import GRAVITY, Material
 from bridgeopt.solver.design import Design
-from bridgeopt.forms.solve import dimension_lines
+from bridgeopt.forms.quantities import dimension_lines
 
 __all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EXIT_SOLVE", "say_error", "number_text",
            "material_text", "row", "format_inputs", "format_form", "format_summary",

@@ -24,7 +24,7 @@ import numpy as np
 
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.solver.design import Design
-from bridgeopt.forms.solve import dimension_lines
+from bridgeopt.forms.quantities import dimension_lines
 
 __all__ = ["design_svg", "write_svg", "write_dxf", "layer_name", "NOTES_LAYER"]
 

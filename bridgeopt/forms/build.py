@@ -42,7 +42,8 @@ from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSp
 from bridgeopt.forms.suspension import suspension_frame
 
 __all__ = ["form_problem", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
-           "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag", "single_element_reach"]
+           "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag",
+           "single_element_reach"]
 
 #: Least clearance between deck and cable or crown, as a part of the available height. [-]
 CLEARANCE = 0.01
@@ -162,7 +163,7 @@ def single_element_reach(problem: Problem, sense: str) -> float:
 
 def _check_self_weight(value: float, need: float, span: float, what: str, key: str,
                        reach: float = math.inf) -> None:
-    """SolveError "span-limit" when ``what`` (``"a cable sag"``, ``"an arch rise"``) is too small."""
+    """SolveError "span-limit" when ``what`` ("a cable sag", "an arch rise") is too small."""
     if value > need:
         return
     if need <= 0:

@@ -33,7 +33,7 @@ from bridgeopt.errors import InputError, SolveError
 from bridgeopt.files.scenario import Scenario, load_scenario
 from bridgeopt.forms.registry import (FORM_SOLVERS, KNOWN_FORMS, REFERENCE, FormSolver,
                                       available_forms, register_form, unregister_form)
-from bridgeopt.forms.solve import dimension_columns, group_quantities
+from bridgeopt.forms.quantities import dimension_columns, group_quantities
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
 from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_scenario

@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 from bridgeopt import PRESETS, BridgeScenario, InputError, SolveError, optimize_layout, study
-from bridgeopt.forms.solve import on_mirror_line
+from bridgeopt.forms.quantities import on_mirror_line
 
 STEEL = PRESETS["steel"]
 

@@ -92,9 +92,10 @@ def test_free_anchors_on_repeating_spans_reach_the_closed_form(pattern):
     d = result.dimensions
     x, z = np.array(d["stay_deck_x_m"]), np.array(d["anchor_heights_m"])
     near = x < 0.5 * (0.5 * span) - 1.0
-    np.testing.assert_allclose(z[near], x[near], rtol=0.1)  # the volume is flat near its least: positions converge slowly
+    # the volume is flat near its least, so the positions converge more slowly than it
+    np.testing.assert_allclose(z[near], x[near], rtol=0.1)
     far = x > 0.5 * (0.5 * span) + 1.0
-    np.testing.assert_allclose(z[far], np.sqrt(x[far] * 0.5 * span / 2), rtol=0.1)  # the volume is flat near its least: positions converge slowly
+    np.testing.assert_allclose(z[far], np.sqrt(x[far] * 0.5 * span / 2), rtol=0.1)
     assert d["start_pattern"] == pattern and d["anchor_move_largest_m"] > 0.0
 
 
