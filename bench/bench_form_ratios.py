@@ -41,37 +41,46 @@ def crossing(span: float) -> BridgeScenario:
                           name=f"bench {span / 1000:g} km")
 
 
+COLUMNS = ("span [m]", "form", "start volume [m3]", "volume [m3]", "start ratio", "ratio",
+           "final dimensions", "time [s]")
+
+
+def _cells(values, formats) -> str:
+    """A Markdown table row; None shows as '-'."""
+    return "| " + " | ".join("-" if v is None else format(v, f)
+                             for v, f in zip(values, formats)) + " |"
+
+
 def main(spans=SPANS) -> None:
     t_all = time.perf_counter()
-    rows = []
+    formats = (".0f", "s", ",.0f", ",.0f", ".3f", ".3f", "s", ".1f")
+    lines = ["| " + " | ".join(COLUMNS) + " |", "|" + "---|" * len(COLUMNS)]
     with np.errstate(over="ignore"):
         for span in spans:
             b = crossing(span)
             ref = optimize_layout(form_problem(b, FORMS["suspension"]))
-            rows.append((span, "reference optimum", ref.volume, ref.volume, 1.0, 1.0, "", 0.0))
+            lines.append(_cells((span, "reference optimum", ref.volume, ref.volume, 1.0, 1.0,
+                                 "", 0.0), formats))
             for label, spec in FORMS.items():
                 t = time.perf_counter()
                 try:
                     r = solve_form(b, spec, reference=ref)
                 except SolveError as err:
-                    rows.append((span, label, None, None, None, None,
-                                 f"impossible ({err.status})", time.perf_counter() - t))
+                    lines.append(_cells((span, label, None, None, None, None,
+                                         f"impossible ({err.status})",
+                                         time.perf_counter() - t), formats))
                     continue
-                dims = ", ".join(f"{k.replace('_', ' ')} {v:.4g}" for k, v in r.geometry.items()
-                                 if isinstance(v, float) and k != "deck_panel")
-                rows.append((span, label, r.start_volume, r.volume, r.start_volume / ref.volume,
-                             r.ratio, dims, time.perf_counter() - t))
-    total = time.perf_counter() - t_all
-    print("| span [m] | form | start volume [m3] | volume [m3] | start ratio | ratio "
-          "| final dimensions | time [s] |")
-    print("|---|---|---|---|---|---|---|---|")
-
-    def g(v, fmt):
-        return "-" if v is None else format(v, fmt)
-    for span, label, v0, v, r0, ratio, dims, sec in rows:
-        print(f"| {span:.0f} | {label} | {g(v0, ',.0f')} | {g(v, ',.0f')} | {g(r0, '.3f')} | "
-              f"{g(ratio, '.3f')} | {dims} | {sec:.1f} |")
-    print(f"\ntotal wall time {total:.1f} s")
+                dims = [f"{k.replace('_', ' ')} {v:.4g} m" for k, v in r.geometry.items()
+                        if k != "deck_panel"]
+                dims += [f"{k.replace('_', ' ')} {r.dimensions[k]:.4g}"
+                         for k in ("span_to_height", "span_to_sag") if k in r.dimensions]
+                if "anchor_move_largest_m" in r.dimensions:
+                    dims.append(f"anchors moved up to {r.dimensions['anchor_move_largest_m']:.4g} m")
+                lines.append(_cells((span, label, r.start_volume, r.volume,
+                                     r.start_volume / ref.volume, r.ratio, ", ".join(dims),
+                                     time.perf_counter() - t), formats))
+    print("\n".join(lines))
+    print(f"\ntotal wall time {time.perf_counter() - t_all:.1f} s")
 
 
 if __name__ == "__main__":

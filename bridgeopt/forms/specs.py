@@ -100,6 +100,12 @@ class CableStayedForm:
     anchor_zone : float, optional
         Semi-fan only: the part of the pylon height, from the top down, over
         which the stays anchor; left out: 0.25. [-]
+    anchors : {"free", "pattern"}
+        With a free pylon height (``span_to_height`` left out): "free" makes the
+        pattern only the start, every stay's anchor height on its pylon being
+        optimized too (the anchors keep their order up the pylon); "pattern"
+        keeps the pattern, the pylon height its one free dimension.  A given
+        ``span_to_height`` keeps the pattern either way.
     """
 
     type = "cable-stayed"
