@@ -40,8 +40,7 @@ def parabola(t) -> np.ndarray:
 def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: str = "parabolic",
                      profile=None, sag_bounds: tuple[float, float] | None = None,
                      tower_bounds: tuple[float, float] | None = None,
-                     height_bounds: tuple[float, float] | None = None,
-                     hanger_slide: float | None = None):
+                     height_bounds: tuple[float, float] | None = None):
     """Frame (and free sag or cable heights, if any) of a suspension form on ``problem``.
 
     Parameters
@@ -70,10 +69,6 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
     height_bounds : (float, float), optional
         Free shape: least and largest height of a cable node above the deck; the
         mid-span node moves only when ``sag_bounds`` is also given. [m]
-    hanger_slide : float, optional
-        Free shape: largest slide of each hanger along the deck (its cable node
-        and deck node together, so that it stays vertical), in grid steps; the
-        hanger on the mid-span line stays. [-]
 
     Returns
     -------
@@ -113,9 +108,4 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
             h = cable_z[j] - zd
             b.parameter(f"cable height {j}", height_bounds[0] - h, height_bounds[1] - h,
                         {(cable[j], 1): 1.0})
-        if hanger_slide:
-            reach = hanger_slide * problem.spacing
-            for j in range(1, len(cable) - 1):
-                b.parameter(f"hanger {j} position", -reach, reach,
-                            {(cable[j], 0): 1.0, (b.node(x[j], zd), 0): 1.0})
     return b.build()
