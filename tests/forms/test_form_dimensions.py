@@ -57,3 +57,14 @@ def test_dimensions_reach_the_json_the_drawing_and_the_study_table():
     assert rows.loc["suspension", "sag_ratio"] == pytest.approx(dims["sag_ratio"], rel=1e-6)
     assert rows.loc["cable-stayed fan", "span_to_height"] > 0
     assert np.isnan(rows.loc["reference optimum", "sag_ratio"])
+
+
+def test_a_bad_anchors_value_is_one_clear_line():
+    from bridgeopt import InputError
+    from bridgeopt.forms import parse_form
+
+    with pytest.raises(InputError) as info:
+        parse_form({"type": "cable-stayed", "anchors": "loose"})
+    msg = str(info.value)
+    assert info.value.field == "form.anchors" and "\n" not in msg
+    assert "'free'" in msg and "'pattern'" in msg and "loose" in msg
