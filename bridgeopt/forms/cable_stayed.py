@@ -16,11 +16,14 @@ one parameter moving every anchor by (anchor height / h) per metre.
 With free anchors (``anchor_bounds``) the pattern is only the start: each
 anchor is its own node on the pylon (a fan's anchors start spread over the top
 :data:`FAN_SPREAD` of the pylon so that each can move), and the free parameters
-are the gaps between consecutive anchors up the pylon (parameter j lifts the
-j-th lowest anchor and every anchor above it, so the anchors keep their order
-and the pylon stays one column), plus, with ``deck_slide`` > 0, each stay's point on
-the deck, which slides along it by at most ``deck_slide`` grid steps (the deck
-load is shared between the moved nodes).  By default the deck points stay on the
+are the gaps between consecutive anchors up the pylon (gap j lifts the j-th
+lowest anchor and every anchor above it) and the lifts of the anchors below each
+gap (closing the gap above anchor j lifts it and those below it, so that an
+anchor can rise while the top is held by the envelope); a gap never closes below
+:data:`LEAST_GAP` of a grid step, so the anchors keep their order and the pylon
+stays one column, plus, with
+``deck_slide`` > 0, each stay's point on the deck, which slides along it by at
+most ``deck_slide`` grid steps (the deck load is shared between the moved nodes).  By default the deck points stay on the
 grid (:data:`DECK_SLIDE` = 0), where the reference is loaded too: a slid point
 lengthens a deck panel beyond a grid step, and the deck is not sized for bending
 over it, which would favour the form.
@@ -146,18 +149,24 @@ def cable_stayed_frame(problem, *, pylons_x, reach: float, pattern: str, stays: 
 
 def _free_anchors(b: FrameBuilder, columns, deck_points, pylons_x, zd: float,
                   anchor_bounds, deck_slide: float) -> None:
-    """Gap parameters up each pylon and a slide parameter per stay's deck point."""
+    """Top and gap parameters on each pylon, and a slide parameter per stay's deck point."""
     gap = LEAST_GAP * b.problem.spacing
     low, high = anchor_bounds
     for k, column in enumerate(columns):
-        z = [b.nodes[i][1] - zd for i in column]
+        z = [b.nodes[i][1] - zd for i in column]      # column[0]: the pylon's foot, at the deck
         top = z[-1]
         for j in range(1, len(column)):
-            # the lowest anchor stays at or above ``low``, the others ``gap`` above the
-            # anchor below them; the top at or below ``high`` (the domain check holds it)
+            # gap j (between the j-th lowest anchor and the node below it) lifts that anchor
+            # and every one above it: the lowest stays at or above ``low``, the others
+            # ``gap`` above the one below; the top's bound is the envelope's room above it
             least = low if j == 1 else gap
-            b.parameter(f"anchor gap {j} on pylon {k + 1}", min(0.0, least - (z[j] - z[j - 1])),
-                        max(0.0, high - top), {(i, 1): 1.0 for i in column[j:]})
+            b.parameter(f"anchor gap {j} on pylon {k + 1}", least - (z[j] - z[j - 1]),
+                        high - top, {(i, 1): 1.0 for i in column[j:]})
+        for j in range(1, len(column) - 1):
+            # closing the gap above anchor j lifts it and those below it and keeps the ones
+            # above: with the top against the envelope, an anchor can still rise
+            b.parameter(f"anchor lift {j} on pylon {k + 1}", 0.0,
+                        (z[j + 1] - z[j]) - gap, {(i, 1): 1.0 for i in column[1:j + 1]})
     pylon_x = np.asarray(pylons_x, dtype=float)
     xs, xe, _ = deck_level(b.problem)
     reach = deck_slide * b.problem.spacing
