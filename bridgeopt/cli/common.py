@@ -15,6 +15,7 @@ from bridgeopt.files.io import written_by_bridgeopt
 from bridgeopt.files.scenario import Scenario
 from bridgeopt.model.materials import GRAVITY, Material
 from bridgeopt.solver.design import Design
+from bridgeopt.forms.quantities import dimension_lines
 
 __all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EXIT_SOLVE", "say_error", "number_text",
            "material_text", "row", "format_inputs", "format_form", "format_summary",
@@ -188,6 +189,7 @@ def format_form(result) -> list[str]:
              row("volume ratio", f"{number_text(result.ratio, 4)} (form / reference)")]
     for name, value in result.geometry.items():
         lines.append(row(name.replace("_", " "), f"{number_text(value)} m"))
+    lines.extend(dimension_lines(getattr(result, "dimensions", {})))
     lines.append("  quantities per element group (whole span):")
     for group, q in result.quantities.items():
         lines.append(f"    {group:<10} {q['members']:>4} members  {number_text(q['volume_m3']):>12} m3  "

@@ -198,6 +198,7 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
         out["volume_ratio"] = form.ratio
         out["form"] = {"type": form.form_type, "keys": form.spec.to_dict(),
                        "start_volume": form.start_volume, "geometry": form.geometry,
+                       "dimensions": getattr(form, "dimensions", {}),
                        "quantities": form.quantities,
                        "reference_stats": {} if form.reference is None else {
                            k: v for k, v in form.reference.stats.items() if k != "history"}}

@@ -24,6 +24,7 @@ import numpy as np
 
 from bridgeopt.cautions import CAUTIONS
 from bridgeopt.solver.design import Design
+from bridgeopt.forms.quantities import dimension_lines
 
 __all__ = ["design_svg", "write_svg", "write_dxf", "layer_name", "NOTES_LAYER"]
 
@@ -96,7 +97,8 @@ def design_svg(design: Design, *, title: str | None = None, width: float = 1000.
     size = max(x1 - x0, z1 - z0, 1e-9)
     margin = 0.05 * size
     scale = width / (x1 - x0 + 2 * margin if x1 > x0 else size + 2 * margin)
-    head, foot = 40.0, 60.0
+    head, foot = (54.0 if isinstance(design.stats, dict) and "form" in design.stats
+                  else 40.0), 60.0
     height = (z1 - z0 + 2 * margin) * scale + head + foot
 
     def sx(x):
@@ -116,6 +118,14 @@ def design_svg(design: Design, *, title: str | None = None, width: float = 1000.
            '<rect width="100%" height="100%" fill="white"/>',
            f'<text x="10" y="24" font-family="sans-serif" font-size="16">{escape(name)}: volume '
            f"{design.volume:.6g} m3 ({len(m)} members; model drawn, x right, z up, m)</text>"]
+    form = design.stats.get("form") if isinstance(design.stats, dict) else None
+    if isinstance(form, dict):   # a bridge form's final dimensions under the title
+        text = "; ".join(line.strip() for line in dimension_lines(form.get("dimensions", {}))
+                         if not line.strip().startswith("anchor heights"))
+        sizes = ", ".join(f"{k.replace('_', ' ')} {v:.4g} m"
+                          for k, v in form.get("geometry", {}).items() if k != "deck_panel")
+        out.append(f'<text x="10" y="38" font-family="sans-serif" font-size="11">'
+                   f"{escape('; '.join(t for t in (sizes, text) if t))}</text>")
     for group in dict.fromkeys(m.group.tolist()):
         out.append(f'<g id="group-{escape(layer_name(group).lower())}" '
                    f'data-group="{escape(group, {chr(34): "&quot;"})}" fill="none" '

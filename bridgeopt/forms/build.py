@@ -20,8 +20,8 @@ form needs, so that the reference stays a fair lower bound:
 free geometry (:class:`~bridgeopt.geometry.optimize.NodeMoves`), checking that the form
 fits: nothing above the domain's rise or below its depth; the suspension
 cable's lowest point and a deck arch's crown at least :data:`CLEARANCE` of the
-available height from the deck; a sag or rise large enough to carry its own
-weight.
+available height from the deck; a sag or rise larger than the least with which
+an equal-strength cable or arch carries its own weight (:func:`self_weight_sag`).
 """
 
 from __future__ import annotations
@@ -45,7 +45,8 @@ from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSp
 from bridgeopt.forms.suspension import suspension_frame
 
 __all__ = ["form_problem", "form_crossing", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
-           "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag"]
+           "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag",
+           "single_element_reach"]
 
 #: Least clearance between deck and cable or crown, as a part of the available height. [-]
 CLEARANCE = 0.01
@@ -132,13 +133,18 @@ def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
 
 
 def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
-    """Least sag (or rise) of a cable (or arch) that carries its own weight over ``span``. [m]
+    """Least sag (or rise) of an equal-strength cable (or arch) over ``span``. [m]
 
-    A parabolic estimate (common practice statics): with its own weight k H per
-    unit length added to the deck load w, H f = (w + k H) L^2/8, so
-    H (1 - k L^2/(8 f)) = w L^2/(8 f), which has a positive H only when
-    f > k L^2/8 (k = rho g/sigma).  Hangers or columns add weight, so the true
-    limit is a little higher.
+    Exact statics of the equal-strength element (area proportional to its
+    force, so its weight per unit length is k T, k = rho g / sigma): with
+    horizontal force H and a deck load w per unit length, H z'' = w + k H
+    (1 + z'^2).  As H grows the shape tends to z'' = k (1 + z'^2), z' = tan(k x)
+    from the lowest point, z = ln(sec(k x))/k: a sag of ln(sec(k L/2))/k, the
+    least with which the element carries its own weight; any deck load needs
+    more.  It is finite only for k L/2 < pi/2, i.e. a single such element spans
+    less than pi*sigma/(rho*g) (a structure of several members can span more).
+    The parabolic estimate k L^2/8 (common practice statics) is a few per cent
+    lower (677 m against 714 m for steel at 5 km).
 
     Parameters
     ----------
@@ -152,21 +158,54 @@ def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
     Returns
     -------
     float
-        Least sag (cable) or rise (arch), k L^2 / 8. [m]
+        Least sag (cable) or rise (arch), ln(sec(k L/2))/k; 0 without
+        self-weight, inf when k L/2 >= pi/2. [m]
     """
-    return problem.k(sense) * span ** 2 / 8.0
+    k = problem.k(sense)
+    if k <= 0:
+        return 0.0
+    t = 0.5 * k * span
+    return -math.log(math.cos(t)) / k if t < 0.5 * math.pi else math.inf
 
 
-def _check_self_weight(value: float, need: float, span: float, what: str, key: str) -> None:
-    """SolveError "span-limit" when ``what`` (``"a cable sag"``, ``"an arch rise"``) is too small."""
-    if value <= need:
-        raise SolveError("span-limit",
-                         f"{what} of {value:.6g} m cannot carry its own weight and the deck over "
-                         f"a {span:.6g} m span: with self-weight it must exceed k L^2/8 = "
-                         f"{need:.6g} m (k = rho*g/sigma; the limit of any span is "
-                         f"pi*sigma/(rho*g) = {math.pi * span ** 2 / (8 * need):.6g} m)"
-                         f"; raise the {what.split()[-1]} ({key}) or use a stronger, lighter "
-                         "material" if need > 0 else f"{what} of {value:.6g} m is too small")
+def single_element_reach(problem: Problem, sense: str) -> float:
+    """pi*sigma/(rho*g): the longest span of one equal-strength cable or arch. [m]
+
+    Parameters
+    ----------
+    problem : Problem
+        Gives k = rho g / sigma of its materials.
+    sense : {"tension", "compression"}
+        A cable (tension) or an arch (compression).
+
+    Returns
+    -------
+    float
+        pi / k (inf without self-weight).  A structure of several members is not
+        bound by it. [m]
+    """
+    k = problem.k(sense)
+    return math.pi / k if k > 0 else math.inf
+
+
+def _check_self_weight(value: float, need: float, span: float, what: str, key: str,
+                       reach: float = math.inf) -> None:
+    """SolveError "span-limit" when ``what`` ("a cable sag", "an arch rise") is too small."""
+    if value > need:
+        return
+    if need <= 0:
+        raise SolveError("span-limit", f"{what} of {value:.6g} m is too small")
+    element = "cable" if "sag" in what else "arch"
+    least = (f"more than ln(sec(k L/2))/k = {need:.6g} m (k = rho*g/sigma)" if math.isfinite(need)
+             else "an impossible sag: the span is beyond the reach of one equal-strength "
+                  f"{element}")
+    raise SolveError("span-limit",
+                     f"{what} of {value:.6g} m cannot carry its own weight and the deck over a "
+                     f"{span:.6g} m span: an equal-strength {element} needs {least}, and no "
+                     f"single equal-strength {element} spans more than pi*sigma/(rho*g) = "
+                     f"{reach:.6g} m (a structure of several members can); raise the "
+                     f"{what.split()[-1]} ({key}), shorten the span or use a stronger, lighter "
+                     "material")
 
 
 def _stays(bridge: BridgeScenario, reach: float) -> int:
@@ -261,15 +300,17 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                 raise InputError("form.span_to_height", spec.span_to_height,
                                  f">= {2 * reach / rise:.6g} (the pylon, {h:.6g} m above the "
                                  f"deck, must fit within the rise of {rise:.6g} m)")
-            bounds = None
+            bounds = anchor_bounds = None
         else:
             h, bounds = _free(start.get("pylon_height", 2 * reach / START_SPAN_TO_HEIGHT),
                               LEAST_RATIO * reach, rise, "bridge.rise", bridge.rise,
                               "a pylon above the deck")
+            anchor_bounds = (CLEARANCE * rise, rise) if spec.anchors == "free" else None
         return with_back_spans(*cable_stayed_frame(
             problem, pylons_x=_pylon_positions(bridge, spec.pylons), reach=reach,
             pattern=spec.pattern, stays=spec.stays or _stays(bridge, reach), height=h,
-            anchor_zone=spec.anchor_zone or ANCHOR_ZONE, height_bounds=bounds))
+            anchor_zone=spec.anchor_zone or ANCHOR_ZONE, height_bounds=bounds,
+            anchor_bounds=anchor_bounds))
     if isinstance(spec, SuspensionForm):
         least = CLEARANCE * rise
         tower_bounds = sag_bounds = height_bounds = None
@@ -289,19 +330,26 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                              f"above the deck under towers at most {top:.6g} m high)")
         need = self_weight_sag(problem, "tension", span)
         if spec.sag_ratio is not None:
-            _check_self_weight(sag, need, span, "a cable sag", "form.sag_ratio")
+            _check_self_weight(sag, need, span, "a cable sag", "form.sag_ratio",
+                               single_element_reach(problem, "tension"))
         else:
             top = rise if spec.tower_height is None else tower
             low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(top - least, 1.02 * need, span, "a cable sag", "bridge.rise")
+            _check_self_weight(top - least, 1.02 * need, span, "a cable sag", "bridge.rise",
+                               single_element_reach(problem, "tension"))
             sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
                                     low, top - least, "bridge.rise", bridge.rise, "a cable sag")
         if spec.tower_height is None:
             # the tower height is free: it starts as low as the sag and the least clearance
             # allow (lifting the whole cable only lengthens hangers and towers)
-            tower, _ = _free(start.get("tower_height", sag + least), sag + least, rise,
-                             "bridge.rise", bridge.rise, "towers")
-            tower_bounds = (sag + least, rise)  # moves the whole cable (its clearance)
+            if rise - (sag + least) > 1e-9 * span:
+                tower, _ = _free(start.get("tower_height", sag + least), sag + least, rise,
+                                 "bridge.rise", bridge.rise, "towers")
+                tower_bounds = (sag + least, rise)  # moves the whole cable (its clearance)
+            else:
+                # the sag starts as deep as the rise allows: towers at the full rise (a free
+                # sag then lowers the cable under them)
+                tower = rise
             if spec.shape == "free":
                 tower_bounds = (least, rise)
         if spec.shape == "free":
@@ -334,10 +382,12 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                 raise InputError("form.rise_ratio", spec.rise_ratio,
                                  f"<= {room / span:.6g} (the arch must fit within "
                                  f"{field} = {value:g} m)")
-            _check_self_weight(f, need, span, "an arch rise", "form.rise_ratio")
+            _check_self_weight(f, need, span, "an arch rise", "form.rise_ratio",
+                               single_element_reach(problem, "compression"))
         else:
             low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(room, 1.02 * need, span, "an arch rise", field)
+            _check_self_weight(room, 1.02 * need, span, "an arch rise", field,
+                               single_element_reach(problem, "compression"))
             f, rise_bounds = _free(start.get("rise", max(START_RISE_RATIO * span, 1.5 * need)),
                                    low, room, field, value, "an arch")
         if spec.shape == "free":

@@ -139,7 +139,8 @@ class FrameBuilder:
             ``{(node, 0 or 1): rate}``: how far each node coordinate moves per metre
             of the parameter. [m/m]
         """
-        self.params.append((name, float(lower), float(upper), dict(moves)))
+        # a bound a rounding error past the start (e.g. a node starting on its bound) is the start
+        self.params.append((name, min(float(lower), 0.0), max(float(upper), 0.0), dict(moves)))
 
     def deck(self, extra_x=()) -> list[int]:
         """Deck nodes (every node at deck level, the deck's ends and ``extra_x``), joined.

@@ -11,9 +11,10 @@ tower height, rise, or every cable or rib node's height) with
 
 from __future__ import annotations
 
+import dataclasses
 import logging
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -22,107 +23,19 @@ from bridgeopt.cautions import CAUTIONS
 from bridgeopt.solver.design import Design
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.frame import Frame, size_frame
-from bridgeopt.geometry.optimize import optimize_geometry
+from bridgeopt.geometry.optimize import NodeMoves, optimize_geometry
 from bridgeopt.solver.layout import optimize_layout
-from bridgeopt.model.materials import GRAVITY
-from bridgeopt.forms.build import build_form, form_problem, self_weight_sag
+from bridgeopt.forms.build import build_form, form_problem, self_weight_sag, single_element_reach
 from bridgeopt.forms.builder import deck_level
-from bridgeopt.forms.specs import FormSpec, ReferenceForm, SuspensionForm
+from bridgeopt.forms.quantities import (GROUPS, dimension_lines, form_dimensions, form_geometry,
+                                        group_quantities, on_mirror_line)
+from bridgeopt.forms.specs import (ArchForm, CableStayedForm, FormSpec, ReferenceForm,
+                                   SuspensionForm)
 
-__all__ = ["FormResult", "solve_form", "group_quantities", "GROUPS"]
+__all__ = ["FormResult", "solve_form", "group_quantities", "on_mirror_line", "start_spec",
+           "GROUPS"]
 
 log = logging.getLogger(__name__)
-
-#: Element groups reported for each form, in report order.
-GROUPS = {
-    "reference": ("member",),
-    "cable-stayed": ("stay", "pylon", "deck", "pier"),
-    "suspension": ("cable", "hanger", "tower", "deck", "pier"),
-    "deck-arch": ("arch rib", "column", "deck", "pier"),
-    "through-arch": ("arch rib", "hanger", "deck", "pier"),
-}
-
-
-def group_quantities(design: Design, groups=(), *, by_sense: bool = False) -> dict:
-    """Members, length, volume, weight and largest force per element group (whole structure).
-
-    The one quantities table of the package, in SI units (N, m, m3); a table shown
-    to people converts at display.
-
-    Parameters
-    ----------
-    design : Design
-        A solved design (its members' ``group``, ``sense``, ``volume`` [m3],
-        ``axial_force`` [N] and centreline ``curves`` [m]).
-    groups : iterable of str, optional
-        Groups reported first, in this order, with zeros when they carry nothing;
-        any other group present follows.
-    by_sense : bool
-        One entry per (group, sense) present, keyed by the pair, in sorted order
-        (``groups`` is then not used).
-
-    Returns
-    -------
-    dict
-        ``{group: {"members": int, "length_m": float, "volume_m3": float,
-        "weight_N": float, "largest_force_N": float}}`` (keys ``(group, sense)``
-        with ``by_sense``).  Lengths (along the centrelines) [m], volumes [m3] and
-        weights [N] count ``design.copies`` copies of the model; member counts are
-        per model; the largest force [N] is the largest axial force (tension
-        positive).
-    """
-    m = design.members
-    prob = design.problem
-    dens_t = prob.material.density if prob is not None else 0.0
-    dens_c = prob.compression.density if prob is not None else 0.0
-    sense = np.asarray(m.sense, dtype=str)
-    group = np.asarray(m.group, dtype=str)
-    volume = np.asarray(m.volume, dtype=float)
-    weight = np.where(sense == "tension", dens_t, dens_c) * volume * GRAVITY
-    length = np.array([_curve_length(c) for c in m.curves], dtype=float)
-    force = np.asarray(m.axial_force, dtype=float)
-    if by_sense:
-        keys = sorted(set(zip(group.tolist(), sense.tolist())))
-        selections = [(k, (group == k[0]) & (sense == k[1])) for k in keys]
-    else:
-        names = list(groups) + [g for g in dict.fromkeys(group.tolist()) if g not in groups]
-        selections = [(g, group == g) for g in names]
-    c = design.copies
-    return {key: {"members": int(sel.sum()), "length_m": float(length[sel].sum()) * c,
-                  "volume_m3": float(volume[sel].sum()) * c,
-                  "weight_N": float(weight[sel].sum()) * c,
-                  "largest_force_N": float(force[sel].max()) if sel.any() else 0.0}
-            for key, sel in selections}
-
-
-def _curve_length(curve: np.ndarray) -> float:
-    """Length of a polyline. [m]"""
-    return float(np.hypot(*np.diff(curve, axis=0).T).sum()) if len(curve) > 1 else 0.0
-
-
-def _geometry(design: Design, form_type: str, deck_z: float) -> dict:
-    """The form's main dimensions, measured on the (optimized) design. [m]"""
-    m, xz = design.members, design.nodes
-
-    def ends(group):
-        sel = m.group == group
-        return xz[np.concatenate([m.start[sel], m.end[sel]])]
-
-    out = {}
-    loaded = np.sort(xz[np.any(design.loads != 0, axis=1), 0])
-    if len(loaded) > 1:
-        out["deck_panel"] = float(np.diff(loaded).max())
-    if form_type == "cable-stayed" and (m.group == "pylon").any():
-        out["pylon_height"] = float(ends("pylon")[:, 1].max() - deck_z)
-    if form_type == "suspension" and (m.group == "cable").any():
-        z = ends("cable")[:, 1]
-        out["tower_height"] = float(z.max() - deck_z)
-        out["sag"] = float(z.max() - z.min())
-    if form_type == "arch" and (m.group == "arch rib").any():
-        z = ends("arch rib")[:, 1]
-        out["rise"] = float(z.max() - z.min())
-    return out
-
 
 @dataclass(frozen=True)
 class FormResult:
@@ -151,6 +64,15 @@ class FormResult:
         Main dimensions of the final form: ``pylon_height``, ``tower_height``,
         ``sag`` or ``rise``, and ``deck_panel``, the largest distance between
         the deck's loaded nodes (where stays, hangers or columns hold it). [m]
+    dimensions : dict
+        Ratios and per-member dimensions of the final form: cable-stayed
+        ``span_to_height`` [-] (pylon spacing over pylon height),
+        ``anchor_heights_m`` and ``stay_deck_x_m`` (per stay of the model, by deck
+        x) [m], ``start_pattern``, and how far the optimized anchors moved from
+        the pattern at its best pylon height, ``anchor_move_largest_m``,
+        ``anchor_move_mean_m``, ``deck_point_move_largest_m`` [m]; suspension
+        ``sag_ratio`` and ``span_to_sag`` [-]; arch ``rise_ratio`` and
+        ``span_to_rise`` [-].
     """
 
     spec: FormSpec
@@ -163,6 +85,7 @@ class FormResult:
     ratio: float
     quantities: dict
     geometry: dict
+    dimensions: dict = field(default_factory=dict)
 
     @property
     def form_type(self) -> str:
@@ -184,6 +107,7 @@ class FormResult:
                  f" m3; ratio {self.ratio:.4f}"]
         for g, q in self.quantities.items():
             lines.append(f"  {g}: {q['members']} members, {q['volume_m3']:.6g} m3")
+        lines.extend(dimension_lines(self.dimensions))
         lines.append(CAUTIONS)
         return "\n".join(lines)
 
@@ -218,20 +142,22 @@ def _size_start(frame: Frame, spec) -> Design:
                 raise SolveError(
                     "span-limit",
                     f"the {spec.type} form cannot carry its loads: its {line[2]} of "
-                    f"{np.ptp(z):.6g} m is close to the least that carries its own weight over "
-                    f"{span:.6g} m, k L^2/8 = {need:.6g} m (k = rho*g/sigma), and the hangers "
-                    "or columns add more; raise it, shorten the span or use a stronger, "
-                    "lighter material (no span exceeds pi*sigma/(rho*g) = "
-                    f"{math.pi / problem.k(line[1]):.6g} m)") from None
+                    f"{np.ptp(z):.6g} m is close to the least with which an equal-strength "
+                    f"{line[0]} carries its own weight over {span:.6g} m, ln(sec(k L/2))/k = "
+                    f"{need:.6g} m (k = rho*g/sigma), and the deck, hangers or columns need "
+                    "more; raise it, shorten the span or use a stronger, lighter material (no "
+                    f"single equal-strength {line[0]} spans more than pi*sigma/(rho*g) = "
+                    f"{single_element_reach(problem, line[1]):.6g} m; a structure of several "
+                    "members can)") from None
         if part[i] < REACH_WARNING:
             raise
         raise SolveError(
             "span-limit",
             f"the {spec.type} form cannot carry its loads: its {frame.group[i]} members reach "
             f"up to {lx[i]:.6g} m horizontally, {100 * part[i]:.0f}% of the reach "
-            f"pi*sigma/(rho*g) = {math.pi / k[i]:.6g} m of an equal-strength element, and an "
-            "element that long sags too far under its own weight to carry the deck as well; "
-            "shorten the reach (more pylons, closer hangers, a shorter span), steepen it (a "
+            f"pi*sigma/(rho*g) = {math.pi / k[i]:.6g} m of a single equal-strength element, "
+            "and an element that long sags too far under its own weight to carry the deck as "
+            "well; shorten the reach (more pylons, closer hangers, a shorter span), steepen it (a "
             "taller pylon, more sag or rise) or use a stronger, lighter material") from None
 
 
@@ -250,7 +176,7 @@ def _funicular_search(bridge, spec, problem, moves, start: Design) -> Design:
     if key not in moves.names:
         return start
     j = moves.names.index(key)
-    now = _geometry(start, spec.type, deck_level(problem)[2])[key]
+    now = form_geometry(start, spec.type, deck_level(problem)[2])[key]
     low, high = now + moves.lower[j], now + moves.upper[j]
     found: dict[float, Design] = {}
 
@@ -270,26 +196,96 @@ def _funicular_search(bridge, spec, problem, moves, start: Design) -> Design:
     return found[value] if found[value].volume < start.volume else start
 
 
-def _optimized(bridge, spec, problem, frame, moves, start: Design) -> Design:
-    """The form after geometry optimization, never heavier than ``start``.
+#: Restarts of the node moves while a restart still gains this relative volume. [-]
+RESTART_GAIN = 1e-4
+#: Most restarts of the node moves of one stage.
+RESTARTS = 2
 
-    A funicular cable or rib with a free sag or rise first gets the sag (rise) of
-    the lightest exact funicular (:func:`_funicular_search`); the form's node
-    moves (sag or rise, tower height, or every node with the free shape) then
-    polish it with :func:`~bridgeopt.geometry.optimize.optimize_geometry`.
+
+def _polish(frame: Frame, moves: NodeMoves | None, best: Design, label: str) -> Design:
+    """optimize_geometry of ``frame`` over ``moves``; ``best`` when that is not lighter.
+
+    The sequential-LP moves stop when a step gains little; they are restarted
+    from where they stopped (the same parameters, bounds shifted by the move
+    made) while a restart gains at least :data:`RESTART_GAIN`.
+    """
+    if moves is None or not moves.size:
+        return best
+    out = best
+    for _ in range(1 + RESTARTS):
+        try:
+            design = optimize_geometry(frame, moves=moves)
+        except SolveError as err:  # keep the best geometry found so far
+            log.warning("geometry optimization of the %s form stopped: %s", label, err)
+            break
+        gain = 1.0 - design.volume / out.volume
+        if design.volume < out.volume:
+            out = design
+        if gain < RESTART_GAIN or design.nodes.shape != frame.nodes.shape:
+            break
+        p = np.linalg.lstsq(moves.T, (design.nodes - frame.nodes).ravel(), rcond=None)[0]
+        moves = NodeMoves(T=moves.T, lower=np.minimum(moves.lower - p, 0.0),
+                          upper=np.maximum(moves.upper - p, 0.0), names=moves.names)
+        frame = frame.moved(design.nodes)
+    return out
+
+
+def start_spec(spec: FormSpec) -> FormSpec:
+    """The spec whose frame is the starting pattern of ``spec`` (free stay anchors: the pattern).
+
+    Parameters
+    ----------
+    spec : FormSpec
+        A form spec.
+
+    Returns
+    -------
+    FormSpec
+        ``spec`` with ``anchors = "pattern"`` for a cable-stayed form, else ``spec``.
+    """
+    if isinstance(spec, CableStayedForm) and spec.anchors == "free":
+        return dataclasses.replace(spec, anchors="pattern")
+    return spec
+
+
+def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Design, Design]:
+    """The form after geometry optimization, never heavier than ``start``, and the pattern.
+
+    Stages, each kept only when it is lighter: (1) the starting pattern's own
+    free dimensions (pylon height; or a funicular cable or rib's sag or rise, by
+    :func:`_funicular_search`, then its node moves); (2) every free dimension from
+    there: each stay's anchor height and deck point (cable-stayed, ``anchors =
+    "free"``), or each cable or rib node's height, the tower height and the
+    hanger positions (a free sag or rise with a funicular or parabolic start).
+    Returns (final design, design at the end of stage 1).
     """
     best = start
     if getattr(spec, "shape", None) == "funicular":
         best = _funicular_search(bridge, spec, problem, moves, start)
         if best is not start:
-            value = _geometry(best, spec.type, deck_level(problem)[2])
+            value = form_geometry(best, spec.type, deck_level(problem)[2])
             frame, moves = build_form(bridge, spec, problem, start=value)
-    try:
-        design = optimize_geometry(frame, moves=moves)
-    except SolveError as err:  # keep the best geometry found so far
-        log.warning("geometry optimization of the %s form stopped: %s", spec.type, err)
-        return best
-    return design if design.volume < best.volume else best
+    best = _polish(frame, moves, best, spec.type)
+    stage1 = best
+    free = None
+    if isinstance(spec, CableStayedForm) and spec.anchors == "free" \
+            and spec.span_to_height is None:
+        free = spec, {"pylon_height": form_geometry(best, spec.type, deck_level(problem)[2])
+                      ["pylon_height"]}
+    elif isinstance(spec, SuspensionForm) and spec.shape != "free" and spec.sag_ratio is None \
+            and spec.tower_height is None:
+        free = dataclasses.replace(spec, shape="free"), None
+    elif isinstance(spec, ArchForm) and spec.shape != "free" and spec.rise_ratio is None:
+        free = dataclasses.replace(spec, shape="free"), None
+    if free is not None:
+        value = free[1] or form_geometry(best, spec.type, deck_level(problem)[2])
+        try:
+            frame, moves = build_form(bridge, free[0], problem, start=value)
+        except InputError as err:  # pragma: no cover - the same envelope as stage 1
+            log.warning("free dimensions of the %s form not optimized: %s", spec.type, err)
+            return best, stage1
+        best = _polish(frame, moves, best, spec.type)
+    return best, stage1
 
 
 def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
@@ -345,11 +341,11 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
                           weight=ref.weight, reference=ref, reference_volume=ref.volume,
                           ratio=1.0, quantities=group_quantities(ref, GROUPS["reference"]),
                           geometry={})
-    frame, moves = build_form(bridge, spec, problem)
+    frame, moves = build_form(bridge, start_spec(spec), problem)
     start = _size_start(frame, spec)
-    design = start
+    design = pattern = start
     if optimize and moves is not None and moves.size:
-        design = _optimized(bridge, spec, problem, frame, moves, start)
+        design, pattern = _optimized(bridge, spec, problem, frame, moves, start)
     ref = None
     if compare:
         ref = reference or optimize_layout(problem, member_adding=member_adding)
@@ -357,16 +353,20 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
             log.warning("the %s form (%.6g m3) is lighter than the reference optimum on this grid "
                         "(%.6g m3): the grid is too coarse to bound it; use more "
                         "bridge.divisions", spec.type, design.volume, ref.volume)
-    geometry = _geometry(design, spec.type, deck_level(problem)[2])
+    geometry = form_geometry(design, spec.type, deck_level(problem)[2])
     if geometry.get("deck_panel", 0.0) > 1.01 * bridge.spacing:
         log.warning("the %s form loads its deck only every %.6g m, more coarsely than the "
                     "reference's grid step of %.6g m: the deck is taken to span between them "
                     "without being sized, which favours the form; use more stays or a closer "
                     "spacing", spec.type, geometry["deck_panel"], bridge.spacing)
     ref_volume = ref.volume if ref is not None else math.nan
+    dimensions = form_dimensions(design, pattern, spec, bridge, geometry)
+    # the final dimensions travel with the design, for drawings and study tables
+    design = dataclasses.replace(design, stats={**design.stats, "form": {
+        "type": spec.type, "geometry": geometry, "dimensions": dimensions}})
     return FormResult(spec=spec, design=design, start_volume=start.volume, volume=design.volume,
                       weight=design.weight, reference=ref, reference_volume=ref_volume,
                       ratio=design.volume / ref_volume,
                       quantities=group_quantities(design, GROUPS[getattr(spec, "variant",
                                                                          spec.type)]),
-                      geometry=geometry)
+                      geometry=geometry, dimensions=dimensions)

@@ -27,6 +27,7 @@ __all__ = ["FORM_TYPES", "ReferenceForm", "CableStayedForm", "SuspensionForm", "
 
 FORM_TYPES = ("reference", "cable-stayed", "suspension", "arch")
 STAY_PATTERNS = ("fan", "semi-fan", "harp")
+ANCHOR_RULES = ("free", "pattern")
 SHAPES = ("funicular", "parabolic", "free")
 ARCH_VARIANTS = ("deck-arch", "through-arch")
 
@@ -99,6 +100,12 @@ class CableStayedForm:
     anchor_zone : float, optional
         Semi-fan only: the part of the pylon height, from the top down, over
         which the stays anchor; left out: 0.25. [-]
+    anchors : {"free", "pattern"}
+        With a free pylon height (``span_to_height`` left out): "free" makes the
+        pattern only the start, every stay's anchor height on its pylon being
+        optimized too (the anchors keep their order up the pylon); "pattern"
+        keeps the pattern, the pylon height its one free dimension.  A given
+        ``span_to_height`` keeps the pattern either way.
     """
 
     type = "cable-stayed"
@@ -107,9 +114,11 @@ class CableStayedForm:
     pylons: int = 1
     span_to_height: float | None = None
     anchor_zone: float | None = None
+    anchors: str = "free"
 
     def __post_init__(self) -> None:
         _choice("form.pattern", self.pattern, STAY_PATTERNS)
+        _choice("form.anchors", self.anchors, ANCHOR_RULES)
         if self.stays is not None:
             _whole("form.stays", self.stays, 1, MAX_PANELS, "stays per side of a pylon")
         _whole("form.pylons", self.pylons, 1, MAX_PYLONS, "pylons per span")

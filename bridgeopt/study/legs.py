@@ -27,7 +27,6 @@ from __future__ import annotations
 import logging
 from typing import Any, Mapping
 
-import numpy as np
 
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.forms.backspan import with_back_spans

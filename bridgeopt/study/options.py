@@ -34,7 +34,7 @@ from bridgeopt.errors import InputError, SolveError
 from bridgeopt.files.scenario import Scenario, load_scenario
 from bridgeopt.forms.registry import (FORM_SOLVERS, KNOWN_FORMS, REFERENCE, FormSolver,
                                       available_forms, register_form, unregister_form)
-from bridgeopt.forms.solve import group_quantities
+from bridgeopt.forms.quantities import dimension_columns, group_quantities
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
 from bridgeopt.study.crossings import crossing_name, reference_on, series_name
@@ -279,6 +279,7 @@ def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> li
             **_split(d),
             "seconds": opt.seconds, "message": opt.message,
         })
+        rows[-1].update(dimension_columns(d))   # a form's final dimensions, when it has them
     return rows
 
 
