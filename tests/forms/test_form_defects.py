@@ -54,7 +54,8 @@ def test_members_on_a_mirror_line_are_reported_for_the_whole_structure():
     the two spans beside it) over its own length, the depth below the deck."""
     w, span, depth = 2e5, 600.0, 180.0
     b = BridgeScenario(span=span, rise=0.5 * span, depth=depth, deck_load=w,
-                       material=PRESETS["weightless-steel"], divisions=20)
+                       material=PRESETS["weightless-steel"], divisions=20,
+                       foundation_depth=depth)      # the pier's foundation at the depth
     result = solve_form(b, CableStayedForm(pattern="harp"), compare=False)
     pier = result.quantities["pier"]
     assert pier["members"] == 1
