@@ -295,3 +295,22 @@ def test_an_unknown_form_name_in_a_study_says_so_with_the_known_names():
     assert option.status == "unavailable"
     assert "not a form bridgeopt knows" in option.message
     assert "did you mean 'cable-stayed fan'?" in option.message
+
+
+def test_the_least_sag_message_says_what_is_exact_and_what_is_margin():
+    """The reach printed is pi*sigma/(rho*g) itself (14,487 m for S355 steel: 355e6 / (7850
+    x 9.80665) x pi), not that figure divided by a hidden factor."""
+    import math
+
+    from bridgeopt import SolveError
+    from bridgeopt.forms import SuspensionForm, solve_form
+
+    steel = PRESETS["steel"]
+    reach = math.pi * steel.tension_strength / (steel.density * 9.80665)
+    bridge = BridgeScenario(span=12000.0, rise=3000.0, depth=0.0, deck_load=2e5, material=steel,
+                            divisions=8)
+    with pytest.raises(SolveError) as err:
+        solve_form(bridge, SuspensionForm())
+    text = err.value.message
+    assert f"{reach:.6g} m" in text and "ln(sec(k L/2))/k" in text
+    assert "kept 2% above it" in text and "\n" not in text

@@ -188,15 +188,26 @@ def single_element_reach(problem: Problem, sense: str) -> float:
     return math.pi / k if k > 0 else math.inf
 
 
+#: A free sag or rise keeps this factor above the least one that carries its own weight, so
+#: that the search starts from an element that can hang (or stand) at all. [-]
+FREE_MARGIN = 1.02
+
+
 def _check_self_weight(value: float, need: float, span: float, what: str, key: str,
-                       reach: float = math.inf) -> None:
-    """SolveError "span-limit" when ``what`` ("a cable sag", "an arch rise") is too small."""
-    if value > need:
+                       reach: float = math.inf, margin: float = 1.0) -> None:
+    """SolveError "span-limit" when ``what`` ("a cable sag", "an arch rise") is too small.
+
+    ``need`` is the exact least value; ``value`` must exceed ``margin * need``.
+    """
+    if value > margin * need:
         return
     if need <= 0:
         raise SolveError("span-limit", f"{what} of {value:.6g} m is too small")
     element = "cable" if "sag" in what else "arch"
-    least = (f"more than ln(sec(k L/2))/k = {need:.6g} m (k = rho*g/sigma)" if math.isfinite(need)
+    kept = (f"; a free {what.split()[-1]} is kept {margin - 1:.0%} above it, at "
+            f"{margin * need:.6g} m" if margin > 1 else "")
+    least = (f"more than ln(sec(k L/2))/k = {need:.6g} m (k = rho*g/sigma){kept}"
+             if math.isfinite(need)
              else "an impossible sag: the span is beyond the reach of one equal-strength "
                   f"{element}")
     raise SolveError("span-limit",
@@ -334,9 +345,9 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                                single_element_reach(problem, "tension"))
         else:
             top = rise if spec.tower_height is None else tower
-            low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(top - least, 1.02 * need, span, "a cable sag", "bridge.rise",
-                               single_element_reach(problem, "tension"))
+            low = max(LEAST_RATIO * 0.5 * span, FREE_MARGIN * need)
+            _check_self_weight(top - least, need, span, "a cable sag", "bridge.rise",
+                               single_element_reach(problem, "tension"), FREE_MARGIN)
             sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
                                     low, top - least, "bridge.rise", bridge.rise, "a cable sag")
         if spec.tower_height is None:
@@ -385,9 +396,9 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
             _check_self_weight(f, need, span, "an arch rise", "form.rise_ratio",
                                single_element_reach(problem, "compression"))
         else:
-            low = max(LEAST_RATIO * 0.5 * span, 1.02 * need)
-            _check_self_weight(room, 1.02 * need, span, "an arch rise", field,
-                               single_element_reach(problem, "compression"))
+            low = max(LEAST_RATIO * 0.5 * span, FREE_MARGIN * need)
+            _check_self_weight(room, need, span, "an arch rise", field,
+                               single_element_reach(problem, "compression"), FREE_MARGIN)
             f, rise_bounds = _free(start.get("rise", max(START_RISE_RATIO * span, 1.5 * need)),
                                    low, room, field, value, "an arch")
         if spec.shape == "free":
