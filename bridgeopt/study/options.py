@@ -222,7 +222,7 @@ def inputs_table(bridge: BridgeScenario):
     Parameters
     ----------
     bridge : BridgeScenario
-        The crossing (span, rise, depth [m], deck load [N/m], materials).
+        The scenario whose inputs are listed.
 
     Returns
     -------
@@ -361,11 +361,11 @@ def compare(bridge: BridgeScenario, forms: Iterable[str] = (),
     Parameters
     ----------
     bridge : BridgeScenario
-        The crossing (span, rise, depth [m], deck load [N/m], materials).
+        The scenario compared (lengths [m], deck load [N/m], materials).
     forms : iterable of str
-        Form names (see :func:`available_forms`); the reference is always solved.
+        The forms set against the reference, by name (:func:`available_forms`).
     options : mapping, optional
-        Passed to every form's solver (e.g. ``{"pylons": 2}``).
+        The study's choices for the forms, given to each solver (``{"pylons": 2}``).
 
     Returns
     -------
