@@ -90,12 +90,12 @@ def _description(data: Mapping) -> str:
 class SolveOptions:
     """How a scenario is solved (the ``[solve]`` table).
 
-    Attributes
+    Parameters
     ----------
     member_adding : bool
         Member adding (default) or the full ground structure in one LP; same optimum.
     batch : int, optional
-        Most members added per member-adding round (default: the solver's choice).
+        Most members added per member-adding round (default: the solver's choice). [-]
     geometry_optimization : bool
         Move, merge and prune the nodes of the layout afterwards
         (:func:`~bridgeopt.geometry.optimize.optimize_geometry`).
@@ -113,17 +113,44 @@ class Scenario:
     Exactly one of ``layout`` and ``bridge`` is set.  :attr:`problem` is the
     layout problem to solve in either case.
 
-    Attributes
+    Parameters
     ----------
     name : str
+        The scenario's name.
     layout : Problem or None
+        The layout problem of a file with a ``[domain]`` table (lengths [m], forces [N]).
     bridge : BridgeScenario or None
+        The crossing of a file with a ``[bridge]`` table (lengths [m], deck load [N/m]).
     solve : SolveOptions
+        How the scenario is solved (the ``[solve]`` table).
     description : str
+        Free text of the file's ``description`` key.
     source : str
         Where the scenario came from (file path), for messages; not compared.
     form : FormSpec, optional
         The bridge form to set against the reference (the ``[form]`` table).
+    cases : tuple of LoadCase
+        The ``[[load_case]]`` tables, on top of the permanent loads (forces [N],
+        intensities [N/m]).
+    costs : UnitCosts or None
+        The ``[cost]`` table (prices of tension and compression members per m3; a file's
+        prices per tonne are converted), or None.
+    permanent : bool
+        The problem's own loads are permanent loads present in every case (False for a
+        layout file whose loads come only from its load cases).
+    piers : tuple of float
+        x-coordinates of extra foundations of a bridge modelled over the whole span. [m]
+    anchorages : tuple of (float, float)
+        Extra held points of a whole-span bridge. [m]
+    channels : tuple of polygons
+        Clearance envelopes (navigation channels) no member may pass through, each a tuple
+        of (x, z) points. [m]
+
+    Attributes
+    ----------
+    problem : Problem
+        The layout problem to solve: ``layout``, the whole span of ``bridge``
+        (:attr:`full_span`), or ``bridge.to_problem()`` (half span).
     """
 
     name: str
@@ -174,7 +201,17 @@ class Scenario:
         return "layout" if self.layout is not None else "bridge"
 
     def with_solve(self, **changes) -> "Scenario":
-        """A copy with some solve options changed (``member_adding=False`` ...)."""
+        """A copy with some solve options changed (``member_adding=False`` ...).
+
+        Parameters
+        ----------
+        **changes
+            Fields of :class:`SolveOptions` and their new values.
+
+        Returns
+        -------
+        Scenario
+        """
         return replace(self, solve=replace(self.solve, **changes))
 
     def to_dict(self) -> dict:
@@ -230,6 +267,13 @@ def material_dict(m: Material) -> dict:
     Parameters
     ----------
     m : Material
+        The material (strengths [Pa], density [kg/m3]).
+
+    Returns
+    -------
+    dict
+        ``name``, ``tension_strength`` [Pa], ``compression_strength`` [Pa] and
+        ``density`` [kg/m3].
     """
     return {"name": m.name, "tension_strength": m.tension_strength,
             "compression_strength": m.compression_strength, "density": m.density}
@@ -242,6 +286,13 @@ def problem_dict(p: Problem) -> dict:
     ----------
     p : Problem
         The layout problem (lengths [m], forces [N], intensities [N/m]).
+
+    Returns
+    -------
+    dict
+        ``copies``, ``domain``, ``material`` and, where the problem has them,
+        ``compression_material``, ``support``, ``load``, ``line_load`` and ``symmetry``
+        (SI units, as in the file).
     """
     d = p.domain
     x0, x1, z0, z1 = d.bounds
@@ -278,6 +329,11 @@ def parse_scenario(data: Mapping, *, source: str = "<dict>") -> Scenario:
         Tables and keys of a scenario file.
     source : str
         Label for messages (the file path).
+
+    Returns
+    -------
+    Scenario
+        The checked scenario.
 
     Raises
     ------
@@ -350,6 +406,16 @@ def _with_cases(data: Mapping, scenario: Scenario) -> Scenario:
 
 def load_scenario(path: str | Path) -> Scenario:
     """Read and check the TOML scenario file at ``path``.
+
+    Parameters
+    ----------
+    path : str or Path
+        The scenario file (``.toml``).
+
+    Returns
+    -------
+    Scenario
+        The checked scenario, its ``source`` the path.
 
     Raises
     ------

@@ -49,6 +49,11 @@ def parse_material(raw: object, label: str, *, for_compression: bool = False,
     allow_single : bool
         The compression strength of ``[material]`` may be left out because a
         ``[compression_material]`` table provides it.
+
+    Returns
+    -------
+    Material
+        Strengths [Pa], density [kg/m3].
     """
     raw = table(label, raw, f"a table [{label}] with keys " + ", ".join(KEYS["material"]))
     check_keys(raw, "material", label, f"[{label}]")
@@ -115,6 +120,13 @@ def parse_materials(data: Mapping) -> tuple[Material, Material | None]:
     ----------
     data : mapping
         The whole file.
+
+    Returns
+    -------
+    material : Material
+        The ``[material]`` table (strengths [Pa], density [kg/m3]).
+    compression_material : Material or None
+        The ``[compression_material]`` table, or None without one.
     """
     if "material" not in data:
         raise InputError("material", MISSING, "a [material] table (strength and density, "
@@ -134,6 +146,13 @@ def parse_domain(raw: object) -> tuple[Domain, float]:
     ----------
     raw : object
         The table read (``x`` and ``z`` or ``outline``, ``spacing``, ``[[domain.excluded]]``). [m]
+
+    Returns
+    -------
+    domain : Domain
+        The design domain (outline and excluded zones). [m]
+    spacing : float
+        The grid spacing. [m]
     """
     raw = table("domain", raw, "a table [domain] with keys " + ", ".join(KEYS["domain"]))
     check_keys(raw, "domain", "domain", "[domain]")
@@ -180,6 +199,11 @@ def parse_support(where: str, raw: Mapping) -> Support:
         Dotted key of the entry, ``"support[0]"``.
     raw : mapping
         The entry read: ``at`` and ``fix``.
+
+    Returns
+    -------
+    Support
+        The point [m] and its restrained directions (``"x"``, ``"z"`` or ``"xz"``).
     """
     at = point(f"{where}.at", required(where, raw, "at", "a pair [x, z] in m"))
     fix = raw.get("fix", "xz")
@@ -198,6 +222,11 @@ def parse_point_load(where: str, raw: Mapping) -> PointLoad:
         Dotted key of the entry, ``"load[0]"``.
     raw : mapping
         The entry read: ``at`` and ``force``.
+
+    Returns
+    -------
+    PointLoad
+        The point [m] and the force (fx, fz) [N].
     """
     at = point(f"{where}.at", required(where, raw, "at", "a pair [x, z] in m"))
     valid = "a pair [fx, fz] of numbers in N, not both 0 (z upwards: gravity has fz < 0)"
@@ -216,6 +245,11 @@ def parse_line_load(where: str, raw: Mapping) -> LineLoad:
         Dotted key of the entry, ``"line_load[0]"``.
     raw : mapping
         The entry read: ``from``, ``to`` and ``intensity``.
+
+    Returns
+    -------
+    LineLoad
+        The ends [m] and the intensity [N/m] (positive downwards).
     """
     start = point(f"{where}.from", required(where, raw, "from", "a pair [x, z] in m"))
     end = point(f"{where}.to", required(where, raw, "to", "a pair [x, z] in m"))
@@ -234,6 +268,11 @@ def parse_symmetry(where: str, raw: Mapping) -> float:
         Dotted key of the entry, ``"symmetry[0]"``.
     raw : mapping
         The entry read: ``x``.
+
+    Returns
+    -------
+    float
+        The mirror line's x-coordinate. [m]
     """
     return number(f"{where}.x", required(where, raw, "x", "a number in m"), "a number in m")
 
@@ -274,6 +313,11 @@ def parse_layout(data: Mapping, name: str, *,
         The file's first ``[[load_case]]``, read when the file has no permanent loads
         (its loads then place the problem's loads; see
         :class:`~bridgeopt.files.scenario.Scenario`).
+
+    Returns
+    -------
+    Problem
+        The checked layout problem (lengths [m], forces [N], intensities [N/m]).
     """
     check_keys(data, "layout", "", "a layout scenario file")
     if "domain" not in data:
@@ -308,6 +352,11 @@ def largest_divisions(span: float, rise: float, depth: float) -> int:
     ----------
     span, rise, depth : float
         The bridge's span, rise above and depth below the deck. [m]
+
+    Returns
+    -------
+    int
+        The largest even number of divisions from 2 to 240 that fits, 0 if none does. [-]
     """
     best = 0
     for d in range(2, 241, 2):
@@ -327,6 +376,11 @@ def parse_bridge(data: Mapping, name: str) -> BridgeScenario:
         The whole file.
     name : str
         The bridge's name unless ``[bridge]`` gives one.
+
+    Returns
+    -------
+    BridgeScenario
+        The checked crossing (lengths [m], deck load [N/m], materials).
     """
     check_keys(data, "bridge-file", "", "a bridge scenario file")
     raw = table("bridge", data["bridge"], "a table [bridge] with keys "

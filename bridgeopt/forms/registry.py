@@ -60,6 +60,11 @@ def form_solver(form_type: str, *, strict: bool = False, **fixed) -> FormSolver:
         fair reference is solved.
     **fixed
         ``[form]`` keys that override the options (e.g. ``pattern="harp"``).
+
+    Returns
+    -------
+    callable
+        ``solve(bridge, options) -> Design``, named ``solve_<form type>_<fixed values>``.
     """
     keys = set(form_keys(form_type)) - {"type"}
 
@@ -93,6 +98,16 @@ def register_form(name: str, solver: FormSolver) -> FormSolver:
     solver : callable
         ``solver(bridge, options) -> Design``; raises ``SolveError`` or
         ``InputError`` when the form cannot be built.
+
+    Returns
+    -------
+    callable
+        ``solver``, unchanged.
+
+    Raises
+    ------
+    InputError
+        ``name`` is empty or the reference's name, or ``solver`` is not callable.
     """
     if not isinstance(name, str) or not name.strip() or name == REFERENCE:
         raise InputError("form", name, f"a non-empty name other than {REFERENCE!r}")
@@ -108,10 +123,17 @@ def unregister_form(name: str) -> None:
     Parameters
     ----------
     name : str
+        The registered name, e.g. ``"suspension"``.
     """
     FORM_SOLVERS.pop(name, None)
 
 
 def available_forms() -> tuple[str, ...]:
-    """Known forms first (in :data:`KNOWN_FORMS` order), then any other registered names."""
+    """Known forms first (in :data:`KNOWN_FORMS` order), then any other registered names.
+
+    Returns
+    -------
+    tuple of str
+        The form names a study offers.
+    """
     return KNOWN_FORMS + tuple(n for n in FORM_SOLVERS if n not in KNOWN_FORMS)

@@ -41,9 +41,10 @@ log = logging.getLogger(__name__)
 class FormResult:
     """A solved bridge form set against the reference optimum of the same scenario.
 
-    Attributes
+    Parameters
     ----------
     spec : FormSpec
+        The form solved (its ``[form]`` keys; lengths [m]).
     design : Design
         The form, sized by the LP on its (optimized) geometry.
     start_volume : float
@@ -55,11 +56,13 @@ class FormResult:
     reference : Design or None
         The reference optimum (layout optimization) on the same problem (None
         when not compared).
-    reference_volume : float [m3]
+    reference_volume : float
+        Volume of the reference optimum (whole span; nan when not compared). [m3]
     ratio : float
         volume / reference_volume. [-]
     quantities : dict
-        Per element group (see :func:`group_quantities`).
+        Per element group: members, volume [m3], weight [N] ... (see
+        :func:`group_quantities`).
     geometry : dict
         Main dimensions of the final form: ``pylon_height``, ``tower_height``,
         ``sag`` or ``rise``, and ``deck_panel``, the largest distance between
@@ -89,6 +92,7 @@ class FormResult:
 
     @property
     def form_type(self) -> str:
+        """The form's type, ``spec.type`` (``"cable-stayed"``, ``"suspension"`` ...)."""
         return self.spec.type
 
     def to_frame(self):
@@ -296,7 +300,9 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
     Parameters
     ----------
     bridge : BridgeScenario
+        The crossing (span, rise, depth [m], deck load [N/m], materials).
     spec : ReferenceForm, CableStayedForm, SuspensionForm or ArchForm
+        The form to build (its ``[form]`` keys; lengths [m]).
     optimize : bool
         Improve the form's free geometry (pylon height, sag, rise ...); without
         it the form keeps its starting geometry.
@@ -312,6 +318,7 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
     Returns
     -------
     FormResult
+        The sized form, its reference, volumes [m3], weight [N] and ratio [-].
 
     Raises
     ------

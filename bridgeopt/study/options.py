@@ -51,10 +51,12 @@ __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "
 class Option:
     """One option of a comparison: the reference optimum or a form.
 
-    Attributes
+    Parameters
     ----------
     name : str
+        :data:`REFERENCE` or the form's name.
     status : {"optimal", "unavailable", "failed"}
+        How the solve ended.
     design : Design or None
         The solved design when ``status == "optimal"``.
     message : str
@@ -81,6 +83,16 @@ def _quiet_solve(fn, *args):
 def solve_reference(bridge: BridgeScenario) -> Design:
     """The minimum-volume layout of ``bridge`` (cached on the frozen scenario).
 
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing (span, rise, depth [m], deck load [N/m], materials).
+
+    Returns
+    -------
+    Design
+        The reference optimum (volume [m3], weight [N]).
+
     Raises
     ------
     SolveError, InputError
@@ -95,10 +107,17 @@ def solve_option(bridge: BridgeScenario, name: str,
     Parameters
     ----------
     bridge : BridgeScenario
+        The crossing (span, rise, depth [m], deck load [N/m], materials).
     name : str
         :data:`REFERENCE` or a form name.
     options : mapping, optional
         Passed to the form's solver (e.g. ``{"pylons": 2}``).
+
+    Returns
+    -------
+    Option
+        Status ``"optimal"`` with the design, else ``"unavailable"`` or ``"failed"``
+        with the message; the solve's wall time [s].
     """
     t0 = time.perf_counter()
     if name == REFERENCE:
@@ -127,13 +146,41 @@ def solve_option(bridge: BridgeScenario, name: str,
 
 def solve_options(bridge: BridgeScenario, forms: Iterable[str] = (),
                   options: Mapping[str, Any] | None = None) -> dict[str, Option]:
-    """The reference optimum and each form in ``forms``, by name (reference first)."""
+    """The reference optimum and each form in ``forms``, by name (reference first).
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing (span, rise, depth [m], deck load [N/m], materials).
+    forms : iterable of str
+        Form names (see :func:`available_forms`); the reference is always solved.
+    options : mapping, optional
+        Passed to every form's solver (e.g. ``{"pylons": 2}``).
+
+    Returns
+    -------
+    dict of str to Option
+        Each option once, :data:`REFERENCE` first (see :func:`solve_option`).
+    """
     names = [REFERENCE] + [f for f in forms if f != REFERENCE]
     return {n: solve_option(bridge, n, options) for n in dict.fromkeys(names)}
 
 
 def comparison_table(bridge: BridgeScenario, results: Mapping[str, Option]):
-    """:func:`compare`'s table from already solved options (see :func:`solve_options`)."""
+    """:func:`compare`'s table from already solved options (see :func:`solve_options`).
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The scenario the options were solved for.
+    results : mapping of str to Option
+        Solved options by name, :data:`REFERENCE` among them.
+
+    Returns
+    -------
+    pandas.DataFrame
+        The columns of :func:`compare` (volumes [m3], weights [N], ratios [-], times [s]).
+    """
     import pandas as pd
 
     return pd.DataFrame(comparison_rows(bridge, results))
@@ -145,8 +192,15 @@ def bridge_from_file(path, *, divisions: int | None = None) -> BridgeScenario:
     Parameters
     ----------
     path : path
+        The scenario file (``.toml``) with a ``[bridge]`` table.
     divisions : int, optional
         Replace the file's grid divisions (e.g. a coarse grid for a quick run). [-]
+
+    Returns
+    -------
+    BridgeScenario
+        The file's bridge (lengths [m], deck load [N/m]), named after the file's
+        ``name`` when ``[bridge]`` gives none.
 
     Raises
     ------
@@ -163,7 +217,19 @@ def bridge_from_file(path, *, divisions: int | None = None) -> BridgeScenario:
 
 
 def inputs_table(bridge: BridgeScenario):
-    """The scenario's inputs as a table: ``input``, ``value``, ``unit``."""
+    """The scenario's inputs as a table: ``input``, ``value``, ``unit``.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The scenario whose inputs are listed.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per input, the value in the unit of its ``unit`` column (m, kN/m, MPa,
+        kg/m3, ``-``).
+    """
     import pandas as pd
 
     m = bridge.material
@@ -254,6 +320,11 @@ def comparison_rows(bridge: BridgeScenario, results: Mapping[str, Option]) -> li
         The scenario the options were solved for.
     results : mapping
         :class:`Option` by name (see :func:`solve_options`).
+
+    Returns
+    -------
+    list of dict
+        One row per option, the keys the columns of :func:`compare`.
     """
     ref = results.get(REFERENCE)
     ref_volume = ref.design.volume if ref is not None and ref.design is not None else math.nan
@@ -287,6 +358,15 @@ def compare(bridge: BridgeScenario, forms: Iterable[str] = (),
             options: Mapping[str, Any] | None = None):
     """One row per option: reference optimum first, then each form.
 
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The scenario compared (lengths [m], deck load [N/m], materials).
+    forms : iterable of str
+        The forms set against the reference, by name (:func:`available_forms`).
+    options : mapping, optional
+        The study's choices for the forms, given to each solver (``{"pylons": 2}``).
+
     Returns
     -------
     pandas.DataFrame
@@ -314,6 +394,7 @@ def quantities(design: Design):
     Parameters
     ----------
     design : Design
+        A solved design (a form or the reference optimum).
 
     Returns
     -------

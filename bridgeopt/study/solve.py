@@ -53,6 +53,11 @@ def case_status(err: BaseException | None) -> str:
     ----------
     err : exception or None
         What the solve raised.
+
+    Returns
+    -------
+    str
+        ``"ok"``, ``"input-error"``, ``"solve-failed"`` or ``"error"``.
     """
     if err is None:
         return "ok"
@@ -67,7 +72,7 @@ def case_status(err: BaseException | None) -> str:
 class Solved:
     """A solved scenario.
 
-    Attributes
+    Parameters
     ----------
     scenario : Scenario
         The scenario as solved (its ``solve`` options with any overrides applied).
@@ -95,6 +100,11 @@ def form_reference(scenario: Scenario) -> Design:
     ----------
     scenario : Scenario
         A bridge scenario (``scenario.bridge`` set).
+
+    Returns
+    -------
+    Design
+        The reference optimum on the form's problem (volume [m3], weight [N]).
 
     Raises
     ------
@@ -129,6 +139,7 @@ def solve_scenario(scenario: Scenario, *, geometry_optimization: bool | None = N
     Returns
     -------
     Solved
+        The scenario as solved and its design (whole structure; volume [m3]).
 
     Raises
     ------

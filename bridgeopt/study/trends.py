@@ -52,10 +52,13 @@ def span_sweep(bridge: BridgeScenario, spans: Iterable[float], forms: Iterable[s
     spans : iterable of float
         Spans to solve. [m]
     forms : iterable of str
+        Form names (see :func:`~bridgeopt.study.options.available_forms`); the
+        reference is always solved.
     options : mapping, optional
+        Passed to every form's solver (e.g. ``{"pylons": 2}``).
     keep_proportions : bool
         Scale rise and depth with the span (same rise/span and depth/span as
-        ``bridge``); otherwise keep them fixed. [-]
+        ``bridge``); otherwise keep them fixed.
     progress : callable, optional
         ``progress(done, total)`` after each span.
 
@@ -82,8 +85,17 @@ def height_sweep(bridge: BridgeScenario, rises: Iterable[float], forms: Iterable
 
     Parameters
     ----------
+    bridge : BridgeScenario
+        The base scenario (span, depth, material, load, arrangement, divisions).
     rises : iterable of float
         Heights allowed above the deck. [m]
+    forms : iterable of str
+        Form names (see :func:`~bridgeopt.study.options.available_forms`); the
+        reference is always solved.
+    options : mapping, optional
+        Passed to every form's solver (e.g. ``{"pylons": 2}``).
+    progress : callable, optional
+        ``progress(done, total)`` after each rise.
 
     Returns
     -------
@@ -143,11 +155,14 @@ def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable
     pylons : iterable of int
         Pylon counts per span. [-]
     forms : iterable of str
+        Form names (see :func:`~bridgeopt.study.options.available_forms`); the
+        reference is always solved.
     options : mapping, optional
+        Passed to every form's solver, its ``"pylons"`` set to each count.
     keep_proportions : bool
         Scale rise and depth with the span.
     progress : callable, optional
-        ``progress(done, total)``.
+        ``progress(done, total)`` after each (pylon count, span), over all counts.
 
     Returns
     -------
