@@ -66,8 +66,8 @@ def main() -> None:
               for k in range(1, min(args.steps, 5) + 1)]
     ok = study.solve_option(BridgeScenario(span=1850.0, **base), args.form).status
     print(f"form {args.form!r}: {ok} (its solve time is in the solve column only when solved)")
-    print(f"| case | slider steps | solve median [s] | draw median [s] | total median [s] "
-          f"| total max [s] |")
+    print("| case | slider steps | solve median [s] | draw median [s] | total median [s] "
+          "| total max [s] |")
     print("|---|---|---|---|---|---|")
     for label, data in (("new value (re-solve)", rows), ("repeated value (cached)", cached)):
         s, d, t = zip(*data)
