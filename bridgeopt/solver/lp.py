@@ -27,13 +27,13 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass
 
-import highspy
 import numpy as np
 
-from bridgeopt.solver.adding import Pruner, add_members
+from bridgeopt.solver.adding import add_members
 from bridgeopt.solver.elements import SENSES, element_coefficients
-from bridgeopt.solver.highs import (add_columns, entry_columns, model_status, new_highs,
-                                    node_rows, raise_for_status, unit_columns)
+from bridgeopt.solver import lpmodel
+from bridgeopt.solver.highs import entry_columns, node_rows, raise_for_status
+from bridgeopt.solver.lpmodel import LayoutModel, vertex_solve
 from bridgeopt.solver.pricing import on_lattice, predict_offsets, price_offsets
 
 __all__ = ["LPData", "LPSolution", "solve_lp", "column_entries", "price_candidates",
@@ -55,18 +55,6 @@ IPM_ROWS = 4000
 #: With the interior point method (no exact vertex duals), member adding stops
 #: once the proven optimality gap is below this.
 IPM_GAP = 1e-5
-#: After interior point rounds, re-solve the columns they use by dual simplex for a
-#: vertex (basic) optimum: forces on few members, exact duals.
-VERTEX = True
-#: Columns with a force above this fraction of the largest are reported (and kept
-#: for the vertex re-solve). [-]
-ACTIVE_FORCE = 1e-9
-#: A column with a force at most this fraction of the largest is "at zero" for
-#: the removal of columns (:class:`~bridgeopt.solver.adding.Pruner`). [-]
-ZERO_FORCE = 1e-9
-#: Simplex-sized LPs solve their first (cold) LP by interior point with crossover
-#: to a basis, then re-solve by warm dual simplex.
-FIRST_IPM = True
 #: Safety stop on member-adding rounds.
 MAX_ROUNDS = 500
 
@@ -255,96 +243,6 @@ def predicted_pairs(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
     return np.unique(pair)
 
 
-class _LayoutModel:
-    """The layout LP held in one HiGHS instance, for :func:`~bridgeopt.solver.adding.add_members`.
-
-    Columns are appended to the live instance, so each round's dual simplex
-    starts from the previous basis (a warm start); columns at zero force for
-    :data:`~bridgeopt.solver.adding.DROP_AFTER` solves are deleted from it
-    (:class:`~bridgeopt.solver.adding.Pruner`).  The multi-case LP instead
-    rebuilds its model each round, see :mod:`bridgeopt.solver.multicase`.
-    """
-
-    def __init__(self, data: LPData, *, ipm: bool, prune: bool = True):
-        self.data = data
-        n2 = 2 * len(data.xz)
-        self.h = new_highs(ipm=ipm)
-        rhs = -np.asarray(data.load, dtype=float)
-        self.h.addRows(n2, rhs, rhs, 0, np.zeros(n2, dtype=np.int32),
-                       np.zeros(0, dtype=np.int32), np.zeros(0))
-        # free reactions on the restrained rows come first
-        add_columns(self.h, unit_columns(data.fixed, n2))
-        self.nfix = len(data.fixed)
-        self.in_lp = np.zeros((len(data.a), 2), dtype=bool)
-        self.pair = np.zeros(0, dtype=np.int64)
-        self.sense = np.zeros(0, dtype=np.int8)
-        self.pruner = Pruner(len(data.a), 2) if prune else None
-        #: Whether the solves give a vertex (basic) solution.
-        self.vertex = not ipm
-        #: Columns taken out of the LP for staying at zero force.
-        self.dropped = 0
-        #: Solve the first LP by interior point with crossover (then warm dual simplex).
-        self.first_ipm = not ipm and FIRST_IPM
-        self.solves = 0
-
-    def add(self, pair: np.ndarray, group: np.ndarray) -> None:
-        for s in range(2):
-            chosen = pair[group == s]
-            kept, columns = lp_columns(self.data, chosen[~self.in_lp[chosen, s]], s)
-            # columns no element can span stay out (and are never violated: nan cost)
-            self.in_lp[kept, s] = True
-            if len(kept):
-                add_columns(self.h, columns)
-                self.pair = np.concatenate([self.pair, kept])
-                self.sense = np.concatenate([self.sense, np.full(len(kept), s, dtype=np.int8)])
-                if self.pruner is not None:
-                    self.pruner.added(len(kept))
-
-    def _prune(self) -> None:
-        """Delete the columns that stayed at zero force (nonbasic ones, where there is a basis)."""
-        basis = self.h.getBasis()
-        if basis.valid:
-            status = np.array([int(c) for c in basis.col_status[self.nfix:]], dtype=np.int64)
-            removable = status != int(highspy.HighsBasisStatus.kBasic)
-        else:
-            removable = np.ones(len(self.pair), dtype=bool)
-        drop = self.pruner.pick(self.pair, self.sense, removable)
-        if drop.any():
-            where = np.nonzero(drop)[0]
-            self.h.deleteCols(len(where), (where + self.nfix).astype(np.int32))
-            self.in_lp[self.pair[where], self.sense[where]] = False
-            self.pair, self.sense = self.pair[~drop], self.sense[~drop]
-            self.dropped += len(where)
-
-    def solve(self) -> str:
-        if self.pruner is not None and self.pruner.zero.max(initial=0) >= self.pruner.after:
-            self._prune()
-        first = self.solves == 0 and self.first_ipm
-        if first:
-            self.h.setOptionValue("solver", "ipm")
-            self.h.setOptionValue("run_crossover", "on")
-        self.h.run()
-        if first:
-            self.h.setOptionValue("solver", "simplex")
-        self.solves += 1
-        status = model_status(self.h)
-        if self.pruner is not None and status == "optimal":
-            force = self.forces()
-            self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))
-        return status
-
-    def forces(self) -> np.ndarray:
-        """Force of each member column of the last solve, in LP order. [-]"""
-        return np.asarray(self.h.getSolution().col_value)[self.nfix:]
-
-    def price(self):
-        return price_candidates(self.data, self.in_lp,
-                                np.asarray(self.h.getSolution().row_dual))
-
-    def arrays(self):
-        return self.pair, self.sense
-
-
 def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = None,
              dual_guess: np.ndarray | None = None) -> LPSolution:
     """Minimum-volume member forces for the dimensionless problem ``data``.
@@ -372,7 +270,8 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     t0 = time.perf_counter()
     n_nodes = len(data.xz)
     ipm = 2 * n_nodes > IPM_ROWS
-    model = _LayoutModel(data, ipm=ipm, prune=member_adding)
+    model = LayoutModel(data, ipm=ipm, prune=member_adding, columns=lp_columns,
+                        price=price_candidates)
     seed = None
     if member_adding and dual_guess is not None:
         seed = predicted_pairs(data, dual_guess, int(PREDICT_PER_NODE * n_nodes))
@@ -384,8 +283,8 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
                      "loads to the supports")
     objective = float(model.h.getInfo().objective_function_value)
     gap = result.gap
-    if ipm and VERTEX:
-        model, objective, gap = _vertex(data, model, objective, gap)
+    if ipm and lpmodel.VERTEX:
+        model, objective, gap = vertex_solve(model, objective, gap)
     h = model.h
     sol = h.getSolution()
     x = np.asarray(sol.col_value)
@@ -393,7 +292,7 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     nfix = len(data.fixed)
     force = x[nfix:]
     scale = float(np.max(force)) if len(force) else 0.0
-    active = force > ACTIVE_FORCE * scale
+    active = force > LayoutModel.active * scale
     return LPSolution(
         objective=objective,
         pair=pair[active], sense=sense[active], force=force[active],
@@ -401,28 +300,3 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
         rounds=result.rounds, columns=int(model.in_lp.sum()), candidates=2 * len(data.a),
         seconds=time.perf_counter() - t0, gap=gap, vertex=model.vertex,
         dropped=model.dropped)
-
-
-def _vertex(data: LPData, model: _LayoutModel, objective: float, gap: float):
-    """A vertex optimum by dual simplex over the columns the interior point solution uses.
-
-    Those columns hold a solution of the interior point objective, so the
-    restricted optimum is at most that; the proven lower bound on the full
-    optimum is the better of the interior point one and the vertex duals' own
-    (priced over every candidate).  Returns (model, objective, gap); the
-    interior point model when the restricted LP has no optimum.
-    """
-    force = model.forces()
-    used = force > ACTIVE_FORCE * force.max(initial=0.0)
-    pair, sense = model.arrays()
-    simplex = _LayoutModel(data, ipm=False, prune=False)
-    simplex.add(pair[used], sense[used].astype(np.int64))
-    if simplex.solve() != "optimal":
-        return model, objective, gap
-    value = float(simplex.h.getInfo().objective_function_value)
-    bound = objective * (1.0 - gap)
-    found = simplex.price()
-    bound = max(bound, value if found is None else value / float(found[2].max()))
-    simplex.vertex = True
-    simplex.dropped = model.dropped
-    return simplex, value, max(0.0, 1.0 - bound / value)
