@@ -270,7 +270,9 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     t0 = time.perf_counter()
     n_nodes = len(data.xz)
     ipm = 2 * n_nodes > IPM_ROWS
-    model = LayoutModel(data, ipm=ipm, prune=member_adding, columns=lp_columns,
+    # columns leave only between simplex solves: interior point rounds with removal
+    # were measured to creep (40+ rounds of 3-8 s at 120 divisions, docs/benchmarks.md)
+    model = LayoutModel(data, ipm=ipm, prune=member_adding and not ipm, columns=lp_columns,
                         price=price_candidates)
     seed = None
     if member_adding and dual_guess is not None:
