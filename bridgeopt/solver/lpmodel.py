@@ -106,8 +106,11 @@ class LayoutModel:
                 if self.pruner is not None:
                     self.pruner.added(len(kept))
 
-    def _prune(self) -> None:
-        """Delete the columns that stayed at zero force (nonbasic ones, where there is a basis)."""
+    def _prune(self) -> tuple[np.ndarray, np.ndarray]:
+        """Delete the columns that stayed at zero force (nonbasic ones, where there is a basis).
+
+        Returns the (pair, sense) of the deleted columns.
+        """
         basis = self.h.getBasis()
         if basis.valid:
             status = np.array([int(c) for c in basis.col_status[self.nfix:]], dtype=np.int64)
@@ -115,16 +118,33 @@ class LayoutModel:
         else:
             removable = np.ones(len(self.pair), dtype=bool)
         drop = self.pruner.pick(self.pair, self.sense, removable)
+        gone = self.pair[drop], self.sense[drop].astype(np.int64)
         if drop.any():
             where = np.nonzero(drop)[0]
             self.h.deleteCols(len(where), (where + self.nfix).astype(np.int32))
-            self.in_lp[self.pair[where], self.sense[where]] = False
+            self.in_lp[gone] = False
             self.pair, self.sense = self.pair[~drop], self.sense[~drop]
             self.dropped += len(where)
+        return gone
 
     def solve(self) -> str:
+        gone = None
         if self.pruner is not None and self.pruner.zero.max(initial=0) >= self.pruner.after:
-            self._prune()
+            gone = self._prune()
+        status = self._run()
+        if gone is not None and len(gone[0]) and status != "optimal":
+            # a safety net: the deleted columns were at zero in a basic optimum, so the
+            # LP without them has that optimum too; should HiGHS say otherwise from the
+            # warm start, they come back (for good) and the LP is solved again
+            self.add(*gone)
+            self.h.clearSolver()
+            status = self._run()
+        if self.pruner is not None and status == "optimal":
+            force = self.forces()
+            self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))
+        return status
+
+    def _run(self) -> str:
         first = self.solves == 0 and self.first_ipm
         if first:
             self.h.setOptionValue("solver", "ipm")
@@ -133,11 +153,7 @@ class LayoutModel:
         if first:
             self.h.setOptionValue("solver", "simplex")
         self.solves += 1
-        status = model_status(self.h)
-        if self.pruner is not None and status == "optimal":
-            force = self.forces()
-            self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))
-        return status
+        return model_status(self.h)
 
     def forces(self) -> np.ndarray:
         """Force of each member column of the last solve, in LP order. [-]"""
