@@ -139,6 +139,14 @@ class LayoutModel:
             self.add(*gone)
             self.h.clearSolver()
             status = self._run()
+        if self.pruner is not None and self.pruner.count and status != "optimal":
+            # still not: every column ever removed comes back (the LP of member adding
+            # without removal), removal stops, and the LP is solved from scratch
+            back = np.nonzero(self.pruner.dropped & ~self.in_lp)
+            self.pruner = None
+            self.add(back[0], back[1])
+            self.h.clearSolver()
+            status = self._run()
         if self.pruner is not None and status == "optimal":
             force = self.forces()
             self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))

@@ -69,3 +69,30 @@ def test_vertex_resolve_after_interior_point_rounds(monkeypatch):
     d = optimize_layout(p)
     assert d.stats["vertex"] is False
     assert d.volume == pytest.approx(full.volume, rel=max(REL, lp.IPM_GAP))
+
+
+@pytest.mark.parametrize("failures", [1, 2])
+def test_columns_come_back_when_a_solve_after_removal_fails(monkeypatch, failures):
+    """Should HiGHS not call the LP optimal after a removal, the removed columns come back
+    (after two failures: every column ever removed) and the optimum is the same."""
+    p = _bridge(16)
+    full = optimize_layout(p, member_adding=False)
+    state = {"armed": False, "left": failures}
+    prune, status = lpmodel.LayoutModel._prune, lpmodel.model_status
+
+    def arming(self):
+        gone = prune(self)
+        state["armed"] = len(gone[0]) > 0 and state["left"] == failures
+        return gone
+
+    def failing(h):
+        if state["armed"] and state["left"] > 0:
+            state["left"] -= 1
+            return "infeasible"
+        return status(h)
+
+    monkeypatch.setattr(lpmodel.LayoutModel, "_prune", arming)
+    monkeypatch.setattr(lpmodel, "model_status", failing)
+    d = optimize_layout(p, coarse_start=False)
+    assert state["left"] == 0
+    assert d.volume == pytest.approx(full.volume, rel=REL)
