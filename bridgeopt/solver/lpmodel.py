@@ -94,6 +94,13 @@ class LayoutModel:
         self.solves = 0
 
     def add(self, pair: np.ndarray, group: np.ndarray) -> None:
+        """Put the members (pair[i], sense group[i]) in the LP (those in it already are skipped).
+
+        Parameters
+        ----------
+        pair, group : (m,) int arrays
+            Candidate pair and sense (0 tension, 1 compression) of each member. [-]
+        """
         for s in range(2):
             chosen = pair[group == s]
             kept, columns = self.columns(self.data, chosen[~self.in_lp[chosen, s]], s)
@@ -128,6 +135,7 @@ class LayoutModel:
         return gone
 
     def solve(self) -> str:
+        """Remove the columns due to leave, then solve: ``"optimal"`` or HiGHS's words."""
         gone = None
         if self.pruner is not None and self.pruner.zero.max(initial=0) >= self.pruner.after:
             gone = self._prune()
@@ -168,10 +176,13 @@ class LayoutModel:
         return np.asarray(self.h.getSolution().col_value)[self.nfix:]
 
     def price(self):
+        """(pair, sense, ratio work/cost) of the columns out of the LP that violate the dual
+        check at the last solve's duals, or None."""
         return self.pricer(self.data, self.in_lp,
                                 np.asarray(self.h.getSolution().row_dual))
 
     def arrays(self):
+        """(pair, sense) of the LP's member columns, in LP order. [-]"""
         return self.pair, self.sense
 
 
