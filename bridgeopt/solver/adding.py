@@ -18,6 +18,10 @@ pair in one or more groups (senses, or element groups), by the same rounds
    column dual feasible, so the optimum is at least objective / ratio), or
    after a safety number of rounds.
 
+A model may also take out members that stayed at zero force (:class:`Pruner`,
+used by the single-case LP between dual simplex solves): they are candidates
+again, so step 3 covers them and the stopping rule and the gap stay exact.
+
 What differs between the two LPs lives in their models (the
 :class:`MemberModel` protocol): how columns are stated, how the LP is solved,
 and how a candidate is priced.
