@@ -16,7 +16,8 @@ final member set solved alone (the columns of member adding's last LP, loaded
 into a fresh HiGHS with the options member adding uses at that size; the lower
 bound of any member-adding scheme on that set) and the ratio of the two, LP
 rounds, columns in the final LP, candidate columns, peak resident memory of the
-process (taken before the final set is solved alone).  ``--methods`` also times
+process (taken before the final set is solved alone), the proven gap, whether the
+answer is a vertex and how many columns left the LP for staying at zero force.  ``--methods`` also times
 the final set alone with each HiGHS method (dual simplex; interior point without
 crossover), the measurement behind the method chosen per size.  ``--repeat N``
 runs each member-adding case N times and keeps the fastest (the machine is
@@ -44,11 +45,10 @@ problem = sc.to_problem()
 
 # record the columns in the LP each time member adding prices (the last call of the
 # largest LP sees its final member set)
-seen = {}
+calls = []
 original = pricing.price_offsets
 def recording(data, in_lp, u, **kw):
-    if len(data.a) >= len(seen.get("data", data).a):
-        seen.update(data=data, in_lp=in_lp.copy())
+    calls.append((data, in_lp.copy()))
     return original(data, in_lp, u, **kw)
 for mod in list(sys.modules.values()):
     if getattr(mod, "__name__", "").startswith("bridgeopt") and \
@@ -80,9 +80,14 @@ out = dict(divisions=n, method="full" if full else "member adding", seconds=dt,
            volume=d.volume, rounds=d.stats["rounds"], columns=d.stats["columns"],
            candidates=d.stats["candidates"], peak_mb=peak, gap=d.stats["gap"],
            normalised=sc.normalised_volume(d.volume))
-if not full and "data" in seen:
-    data, in_lp = seen["data"], seen["in_lp"]
-    used = "ipm" if 2 * len(data.xz) > lp.IPM_ROWS else "simplex"
+largest = max((len(c[0].a) for c in calls), default=0)
+calls = [c for c in calls if len(c[0].a) == largest]
+used = "ipm" if calls and 2 * len(calls[0][0].xz) > lp.IPM_ROWS else "simplex"
+if used == "ipm" and d.stats["vertex"]:
+    calls = calls[:-1]  # the last pricing checked the vertex re-solve's duals
+out["vertex"], out["dropped"] = d.stats["vertex"], d.stats["dropped"]
+if not full and calls:
+    data, in_lp = calls[-1]
     out["alone_method"] = used
     out["alone"], _ = alone(data, in_lp, used)
     if methods:
@@ -128,15 +133,16 @@ def main() -> None:
     extra = " simplex alone [s] | ipm alone [s] |" if args.methods else ""
     print("| divisions | method | time [s] | HiGHS alone on final set [s] | ratio | LP rounds "
           "| columns in LP | candidate columns | peak memory [MB] | volume [m3] "
-          f"| V sigma/(w L^2) |{extra}")
-    print("|---" * (11 + 2 * args.methods) + "|")
+          f"| V sigma/(w L^2) | gap | vertex | columns dropped |{extra}")
+    print("|---" * (14 + 2 * args.methods) + "|")
     for r in rows:
         ratio = f"{r['seconds'] / r['alone']:.2f}" if "alone" in r else "-"
         alone = f"{r['alone']:.2f} ({r['alone_method']})" if "alone" in r else "-"
         more = f" {_cell(r, 'simplex')} | {_cell(r, 'ipm')} |" if args.methods else ""
         print(f"| {r['divisions']} | {r['method']} | {r['seconds']:.2f} | {alone} | {ratio} | "
               f"{r['rounds']} | {r['columns']} | {r['candidates']} | {r['peak_mb']:.0f} | "
-              f"{r['volume']:.3f} | {r['normalised']:.5f} |{more}")
+              f"{r['volume']:.3f} | {r['normalised']:.5f} | {r['gap']:.1e} | "
+              f"{r.get('vertex', '-')} | {r.get('dropped', '-')} |{more}")
     for r in rows:
         if "tries" in r:
             print(f"\n{r['divisions']} divisions, member adding, {len(r['tries'])} runs [s]: "

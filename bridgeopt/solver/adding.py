@@ -18,6 +18,10 @@ pair in one or more groups (senses, or element groups), by the same rounds
    column dual feasible, so the optimum is at least objective / ratio), or
    after a safety number of rounds.
 
+A model may also take out members that stayed at zero force (:class:`Pruner`,
+used by the single-case LP between dual simplex solves): they are candidates
+again, so step 3 covers them and the stopping rule and the gap stay exact.
+
 What differs between the two LPs lives in their models (the
 :class:`MemberModel` protocol): how columns are stated, how the LP is solved,
 and how a candidate is priced.
@@ -40,13 +44,16 @@ import numpy as np
 
 from bridgeopt.errors import InputError
 
-__all__ = ["MemberModel", "AddingResult", "add_members", "proven_gap", "strongest", "check_options"]
+__all__ = ["MemberModel", "AddingResult", "add_members", "proven_gap", "strongest", "check_options",
+           "Pruner", "DROP_AFTER"]
 
 log = logging.getLogger(__name__)
 #: Progress of long solves (the command line shows it; a library user may).
 progress = logging.getLogger("bridgeopt.progress")
 #: Seconds after which each round is reported on the progress logger. [s]
 PROGRESS_AFTER = 3.0
+#: A column that carried no force in this many solves in a row leaves the LP. [-]
+DROP_AFTER = 2
 
 
 class MemberModel(Protocol):
@@ -126,6 +133,79 @@ def strongest(ratio: np.ndarray, limit: int) -> np.ndarray:
     if len(ratio) <= limit:
         return np.arange(len(ratio))
     return np.argpartition(-ratio, limit)[:limit]
+
+
+class Pruner:
+    """Which members leave the LP: those at zero force for ``after`` solves in a row.
+
+    Keeps each LP's size near that of its active set: a member that carried no
+    force (and is nonbasic, where the solve has a basis) in the last ``after``
+    solves is taken out; pricing covers it again like any candidate out of the
+    LP, so it comes back if it violates the dual check, and the stopping rule and
+    the proven gap stay exact.  Against cycling, a member added in the last
+    ``after`` rounds is never taken out (its count starts at 0), and a member is
+    taken out at most once: after it comes back it stays.
+
+    Parameters
+    ----------
+    n_pairs, n_groups : int
+        Shape of the model's ``in_lp``. [-]
+    after : int
+        Solves at zero force before a member leaves (at least 2: after 1 the
+        rounds were seen to cycle). [-]
+    """
+
+    def __init__(self, n_pairs: int, n_groups: int, *, after: int = DROP_AFTER):
+        if after < 1:
+            raise InputError("after", after, "a whole number >= 1")
+        self.after = after
+        #: (n_pairs, n_groups) bool: members taken out once (they stay if they come back).
+        self.dropped = np.zeros((n_pairs, n_groups), dtype=bool)
+        #: Solves in a row at zero force of each LP member, in LP order. [-]
+        self.zero = np.zeros(0, dtype=np.int64)
+        #: Members taken out so far. [-]
+        self.count = 0
+
+    def added(self, m: int) -> None:
+        """``m`` members were appended to the LP (in LP order).
+
+        Parameters
+        ----------
+        m : int
+            Number of members appended. [-]
+        """
+        self.zero = np.concatenate([self.zero, np.zeros(m, dtype=np.int64)])
+
+    def solved(self, at_zero: np.ndarray) -> None:
+        """Record a solve: ``at_zero`` (LP order) tells which members carried no force.
+
+        Parameters
+        ----------
+        at_zero : (m,) bool array
+            Member at zero force in the last solve. [-]
+        """
+        self.zero = np.where(at_zero, self.zero + 1, 0)
+
+    def pick(self, pair: np.ndarray, group: np.ndarray, removable: np.ndarray) -> np.ndarray:
+        """Members (LP order) to take out now; they are forgotten here.
+
+        Parameters
+        ----------
+        pair, group : (m,) int arrays
+            Pair and group of each LP member, in LP order. [-]
+        removable : (m,) bool array
+            Members that may leave without harm to the solver's state (nonbasic). [-]
+
+        Returns
+        -------
+        (m,) bool array
+            True for the members to take out.
+        """
+        drop = (self.zero >= self.after) & removable & ~self.dropped[pair, group]
+        self.dropped[pair[drop], group[drop]] = True
+        self.zero = self.zero[~drop]
+        self.count += int(drop.sum())
+        return drop
 
 
 def _all_groups(pair: np.ndarray, n_groups: int) -> tuple[np.ndarray, np.ndarray]:

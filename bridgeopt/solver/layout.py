@@ -344,6 +344,7 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
         nodes=nodes, members=members, loads=loads, reactions=reactions, duals=duals,
         stats={"rounds": sol.rounds, "columns": sol.columns, "candidates": sol.candidates,
                "seconds": sol.seconds, "grid_nodes": grid.n, "gap": sol.gap,
+               "vertex": sol.vertex, "dropped": sol.dropped,
                "lp_volume": problem.copies * sol.objective * ref_force * ref_len / ref_sigma},
         copies=problem.copies, model_volume=model_volume,
         equilibrium_error=model_error, problem=problem)

@@ -31,8 +31,9 @@ import numpy as np
 
 from bridgeopt.solver.adding import add_members
 from bridgeopt.solver.elements import SENSES, element_coefficients
-from bridgeopt.solver.highs import (add_columns, entry_columns, model_status, new_highs,
-                                    node_rows, raise_for_status, unit_columns)
+from bridgeopt.solver import lpmodel
+from bridgeopt.solver.highs import entry_columns, node_rows, raise_for_status
+from bridgeopt.solver.lpmodel import LayoutModel, vertex_solve
 from bridgeopt.solver.pricing import on_lattice, predict_offsets, price_offsets
 
 __all__ = ["LPData", "LPSolution", "solve_lp", "column_entries", "price_candidates",
@@ -116,6 +117,8 @@ class LPSolution:
     candidates: int
     seconds: float
     gap: float = 0.0
+    vertex: bool = True
+    dropped: int = 0
 
 
 def column_entries(data: LPData, pair: np.ndarray, sense: str):
@@ -240,50 +243,6 @@ def predicted_pairs(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
     return np.unique(pair)
 
 
-class _LayoutModel:
-    """The layout LP held in one HiGHS instance, for :func:`~bridgeopt.solver.adding.add_members`.
-
-    Columns are appended to the live instance, so each round's dual simplex
-    starts from the previous basis (a warm start); the multi-case LP instead
-    rebuilds its model each round, see :mod:`bridgeopt.solver.multicase`.
-    """
-
-    def __init__(self, data: LPData):
-        self.data = data
-        n2 = 2 * len(data.xz)
-        self.h = new_highs(ipm=n2 > IPM_ROWS)
-        rhs = -np.asarray(data.load, dtype=float)
-        self.h.addRows(n2, rhs, rhs, 0, np.zeros(n2, dtype=np.int32),
-                       np.zeros(0, dtype=np.int32), np.zeros(0))
-        # free reactions on the restrained rows come first
-        add_columns(self.h, unit_columns(data.fixed, n2))
-        self.in_lp = np.zeros((len(data.a), 2), dtype=bool)
-        self.pair: list[np.ndarray] = []
-        self.sense: list[np.ndarray] = []
-
-    def add(self, pair: np.ndarray, group: np.ndarray) -> None:
-        for s in range(2):
-            chosen = pair[group == s]
-            kept, columns = lp_columns(self.data, chosen[~self.in_lp[chosen, s]], s)
-            # columns no element can span stay out (and are never violated: nan cost)
-            self.in_lp[kept, s] = True
-            if len(kept):
-                add_columns(self.h, columns)
-                self.pair.append(kept)
-                self.sense.append(np.full(len(kept), s, dtype=np.int8))
-
-    def solve(self) -> str:
-        self.h.run()
-        return model_status(self.h)
-
-    def price(self):
-        return price_candidates(self.data, self.in_lp,
-                                np.asarray(self.h.getSolution().row_dual))
-
-    def arrays(self):
-        return np.concatenate(self.pair), np.concatenate(self.sense)
-
-
 def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = None,
              dual_guess: np.ndarray | None = None) -> LPSolution:
     """Minimum-volume member forces for the dimensionless problem ``data``.
@@ -310,17 +269,24 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     """
     t0 = time.perf_counter()
     n_nodes = len(data.xz)
-    model = _LayoutModel(data)
+    ipm = 2 * n_nodes > IPM_ROWS
+    # columns leave only between simplex solves: interior point rounds with removal
+    # were measured to creep (40+ rounds of 3-8 s at 120 divisions, docs/benchmarks.md)
+    model = LayoutModel(data, ipm=ipm, prune=member_adding and not ipm, columns=lp_columns,
+                        price=price_candidates)
     seed = None
     if member_adding and dual_guess is not None:
         seed = predicted_pairs(data, dual_guess, int(PREDICT_PER_NODE * n_nodes))
     # simplex solves to the exact optimum; the interior point method (large LPs) stops
     # at a proven gap, as it has no exact vertex duals
     result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
-                         gap_tol=IPM_GAP if 2 * n_nodes > IPM_ROWS else None,
-                         max_rounds=MAX_ROUNDS, seed=seed)
+                         gap_tol=IPM_GAP if ipm else None, max_rounds=MAX_ROUNDS, seed=seed)
     raise_for_status(result.status, "no structure in the ground structure can carry the "
                      "loads to the supports")
+    objective = float(model.h.getInfo().objective_function_value)
+    gap = result.gap
+    if ipm and lpmodel.VERTEX:
+        model, objective, gap = vertex_solve(model, objective, gap)
     h = model.h
     sol = h.getSolution()
     x = np.asarray(sol.col_value)
@@ -328,10 +294,11 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     nfix = len(data.fixed)
     force = x[nfix:]
     scale = float(np.max(force)) if len(force) else 0.0
-    active = force > 1e-9 * scale
+    active = force > LayoutModel.active * scale
     return LPSolution(
-        objective=float(h.getInfo().objective_function_value),
+        objective=objective,
         pair=pair[active], sense=sense[active], force=force[active],
         reactions=x[:nfix].copy(), duals=np.asarray(sol.row_dual).copy(),
         rounds=result.rounds, columns=int(model.in_lp.sum()), candidates=2 * len(data.a),
-        seconds=time.perf_counter() - t0, gap=result.gap)
+        seconds=time.perf_counter() - t0, gap=gap, vertex=model.vertex,
+        dropped=model.dropped)
