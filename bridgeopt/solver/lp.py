@@ -63,18 +63,25 @@ MAX_ROUNDS = 500
 class LPData:
     """Dimensionless LP input.
 
-    Attributes
+    Parameters
     ----------
-    xz : (n, 2) node coordinates, divided by the reference length.
-    a, b : int32 candidate member ends (a left, or lower if vertical).
-    k : dict sense -> k * reference length.
-    cost_scale : dict sense -> sigma_ref / sigma_sense.
-    load : (2n,) nodal loads divided by the reference force (x, z interleaved).
-    fixed : int array of restrained equilibrium rows (2*node + 0 for x, + 1 for z).
-    reach : int (n_pairs,) lattice reach max(|di|, |dj|) of each pair; member
-        adding starts from reach 1 (nearest neighbours).
-    allowed : bool (n_pairs, 2), optional: which senses (tension, compression)
-        each pair may take; both when None.
+    xz : (n, 2) float array
+        Node coordinates, divided by the reference length. [-]
+    a, b : (m,) int32 arrays
+        Candidate member ends (a left, or lower if vertical). [-]
+    k : dict
+        Sense -> k times the reference length (self-weight parameter). [-]
+    cost_scale : dict
+        Sense -> sigma_ref / sigma_sense. [-]
+    load : (2n,) float array
+        Nodal loads divided by the reference force (x, z interleaved). [-]
+    fixed : int array
+        Restrained equilibrium rows (2*node + 0 for x, + 1 for z). [-]
+    reach : (m,) int array
+        Lattice reach max(|di|, |dj|) of each pair; member adding starts from
+        reach 1 (nearest neighbours). [-]
+    allowed : (m, 2) bool array, optional
+        Which senses (tension, compression) each pair may take; both when None.
     """
 
     xz: np.ndarray
@@ -92,18 +99,31 @@ class LPData:
 class LPSolution:
     """Dimensionless LP optimum.
 
-    Attributes
+    Parameters
     ----------
     objective : float
-    pair : int array, candidate index of each active column.
-    sense : int array, 0 tension, 1 compression.
-    force : float array, H or F of each active column.
-    reactions : (len(fixed),) reaction at each restrained row.
-    duals : (2n,) equality-row duals (virtual nodal displacements).
-    rounds, columns, candidates : solve statistics.
-    gap : proven relative optimality gap left by member adding (0 when no
-        column violates the dual check).
-    seconds : wall time.
+        Optimum of the dimensionless LP (volume over P L / sigma_ref). [-]
+    pair : int array
+        Candidate index of each active column. [-]
+    sense : int array
+        Sense of each active column, 0 tension, 1 compression. [-]
+    force : float array
+        H (curved) or F (straight) of each active column, over the reference force. [-]
+    reactions : float array
+        Reaction at each restrained row, over the reference force. [-]
+    duals : (2n,) float array
+        Equality-row duals (virtual nodal displacements). [-]
+    rounds, columns, candidates : int
+        LP solves, columns of the final LP, candidate columns. [-]
+    seconds : float
+        Wall time. [s]
+    gap : float
+        Proven relative optimality gap left (0 when no column violates the dual
+        check). [-]
+    vertex : bool
+        Whether the answer is a basic (vertex) solution.
+    dropped : int
+        Columns removed at zero force during member adding. [-]
     """
 
     objective: float
@@ -129,14 +149,19 @@ def column_entries(data: LPData, pair: np.ndarray, sense: str):
     data : LPData
         The dimensionless LP.
     pair : (m,) int array
-        Candidate pairs (indices into ``data.a``, ``data.b``).
+        Candidate pairs (indices into ``data.a``, ``data.b``). [-]
     sense : {"tension", "compression"}
+        The element's sense (cable or arch, tie or strut).
 
     Returns
     -------
-    cost : (m,) float, nan where the element cannot span (k*Lx >= pi). [-]
-    rows : (m, 4) int, values : (m, 4) float.  Vertical members have zero x
-    entries (dropped when the CSC matrix is built).
+    cost : (m,) float array
+        Cost per unit force, nan where the element cannot span (k*Lx >= pi). [-]
+    rows : (m, 4) int array
+        Equilibrium rows of the end forces. [-]
+    values : (m, 4) float array
+        End-force entries per unit force; vertical members have zero x entries
+        (dropped when the CSC matrix is built). [-]
     """
     a, b = data.a[pair], data.b[pair]
     p, q = data.xz[a], data.xz[b]
@@ -157,9 +182,16 @@ def lp_columns(data: LPData, pair: np.ndarray, s: int):
     data : LPData
         The dimensionless LP.
     pair : (m,) int array
-        Candidate pairs.
+        Candidate pairs. [-]
     s : int
-        Sense index into :data:`~bridgeopt.solver.elements.SENSES`.
+        Sense index into :data:`~bridgeopt.solver.elements.SENSES`. [-]
+
+    Returns
+    -------
+    pair : int array
+        The pairs kept. [-]
+    columns : ColumnSet
+        Their columns (cost, CSC entries).
     """
     if data.allowed is not None:
         pair = pair[data.allowed[pair, s]]
@@ -223,6 +255,11 @@ def predicted_pairs(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
         Estimated equality-row duals. [-]
     limit : int
         Most pairs returned (those of largest ratio u.a/c). [-]
+
+    Returns
+    -------
+    ndarray of int
+        The predicted pairs, sorted. [-]
     """
     if on_lattice(data):  # the same pairs from a table of lattice offsets
         return predict_offsets(data, guess, limit, ratio=PREDICT_RATIO, chunk=PRICE_CHUNK,
@@ -260,6 +297,11 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     dual_guess : ndarray, optional
         Estimated equality-row duals (e.g. interpolated from a coarser grid); the
         pairs they predict to be active join the first LP. [-]
+
+    Returns
+    -------
+    LPSolution
+        The optimum: active columns, reactions, duals and statistics.
 
     Raises
     ------
