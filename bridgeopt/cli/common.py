@@ -19,7 +19,7 @@ from bridgeopt.forms.quantities import dimension_lines
 
 __all__ = ["EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EXIT_SOLVE", "say_error", "number_text",
            "material_text", "row", "format_inputs", "format_form", "format_summary",
-           "check_json_target"]
+           "check_json_target", "form_crossing"]
 
 #: Exit statuses.
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT, EXIT_SOLVE = 0, 1, 2, 3
@@ -166,13 +166,39 @@ def format_inputs(scenario: Scenario) -> list[str]:
     return lines
 
 
-def format_form(result) -> list[str]:
+def form_crossing(scenario: Scenario, form) -> str:
+    """How the crossing of a solved form differs from its scenario's own ("" when the same).
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The scenario solved.
+    form : FormResult
+        Its solved form.
+
+    Returns
+    -------
+    str
+        ``"2 piers"``, ``"foundations 60 m below the deck"`` ... (see
+        :func:`bridgeopt.study.crossings.crossing_name`).
+    """
+    from bridgeopt.study.crossings import crossing_name
+
+    if scenario.bridge is None or form is None:
+        return ""
+    return crossing_name(getattr(form.reference, "problem", None), scenario.bridge.to_problem())
+
+
+def format_form(result, crossing: str = "") -> list[str]:
     """Lines setting a solved bridge form against the reference optimum.
 
     Parameters
     ----------
     result : FormResult
         A solved form (:func:`~bridgeopt.forms.solve_form`).
+    crossing : str
+        How the form's crossing differs from the scenario's own (``"2 piers"``), or
+        ``""`` when it stands on the scenario's supports.
 
     Returns
     -------
@@ -183,9 +209,11 @@ def format_form(result) -> list[str]:
     lines = [f"Form: {result.form_type}" + (f" ({keys})" if keys else ""),
              row("form volume", f"{number_text(result.volume)} m3 (starting geometry "
                   f"{number_text(result.start_volume)} m3)"),
-             row("reference optimum", f"{number_text(result.reference_volume)} m3 (layout "
-                  + ("and geometry " if "history" in result.reference.stats else "")
-                  + "optimization, same domain and supports)"),
+             row("reference optimum" + (f" ({crossing})" if crossing else ""),
+                 f"{number_text(result.reference_volume)} m3 (layout "
+                 + ("and geometry " if "history" in result.reference.stats else "")
+                 + "optimization, same domain and supports as the form"
+                 + (f": the scenario's crossing with {crossing}" if crossing else "") + ")"),
              row("volume ratio", f"{number_text(result.ratio, 4)} (form / reference)")]
     for name, value in result.geometry.items():
         lines.append(row(name.replace("_", " "), f"{number_text(value)} m"))
@@ -263,7 +291,7 @@ def format_summary(scenario: Scenario, design: Design, wall_seconds: float | Non
                           f"-> {len(m)} ({len(st['history']) - 1} stages)"))
     lines.append(row("equilibrium error", f"{design.equilibrium_error:.1e} of the applied load"))
     if form is not None:
-        lines += format_form(form)
+        lines += format_form(form, form_crossing(scenario, form))
     lines.append(CAUTIONS)
     return "\n".join(lines)
 

@@ -11,8 +11,8 @@ import numpy as np
 
 from bridgeopt import __version__
 from bridgeopt.cautions import CAUTIONS
-from bridgeopt.cli.common import (EXIT_OK, check_json_target, format_inputs, format_summary,
-                                  row)
+from bridgeopt.cli.common import (EXIT_OK, check_json_target, form_crossing, format_inputs,
+                                  format_summary, row)
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.files.design_json import design_to_dict, write_json
 from bridgeopt.files.scenario import Scenario, load_scenario
@@ -84,7 +84,7 @@ def solve_and_report(scenario: Scenario, args, t0: float) -> int:
     if out is not None:
         try:
             write_json(out, design_to_dict(design, scenario=scenario, wall_seconds=wall,
-                                           form=form))
+                                           form=form, crossing=form_crossing(scenario, form)))
         except OSError as err:
             raise InputError("--json", str(out), f"a writable file ({err.strerror})") from None
     print(format_summary(scenario, design, wall, form=form))

@@ -115,7 +115,7 @@ def _derived(problem, scenario) -> dict:
 
 
 def design_to_dict(design: Design, *, scenario: Scenario | None = None,
-                   wall_seconds: float | None = None, form=None) -> dict:
+                   wall_seconds: float | None = None, form=None, crossing: str = "") -> dict:
     """A JSON-ready dict of ``design`` (SI units; see the module docstring for the keys).
 
     Parameters
@@ -131,6 +131,10 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
         A solved bridge form (``design`` is then its design): adds
         ``reference_volume`` [m3], ``volume_ratio`` [-] and ``form`` (type, keys,
         starting volume, main dimensions, quantities per element group).
+    crossing : str
+        With ``form``: how the crossing the form and its reference stand on differs
+        from the scenario's own (``"2 piers"``; ``""`` for the same supports), written
+        as ``reference_crossing``.
 
     Returns
     -------
@@ -195,6 +199,7 @@ def design_to_dict(design: Design, *, scenario: Scenario | None = None,
     }
     if form is not None:
         out["reference_volume"] = form.reference_volume
+        out["reference_crossing"] = crossing
         out["volume_ratio"] = form.ratio
         out["form"] = {"type": form.form_type, "keys": form.spec.to_dict(),
                        "start_volume": form.start_volume, "geometry": form.geometry,

@@ -345,3 +345,17 @@ def test_solve_with_geometry_optimization(small, tmp_path):
     assert plain.returncode == 0
     assert data["volume"] <= before["volume"] * (1 + 1e-12)
     assert data["stats"]["history"][0]["volume"] == pytest.approx(before["volume"], rel=1e-9)
+
+
+@pytest.mark.slow
+def test_a_form_on_extra_piers_names_its_crossing_in_the_text_and_the_json(tmp_path):
+    scenario = tmp_path / "piers.toml"
+    scenario.write_text('name = "Ashgrove Narrows (fictional)"\n[bridge]\nspan = 1200.0\n'
+                        'rise = 300.0\ndepth = 60.0\ndeck_load = 1.8e5\ndivisions = 12\n'
+                        'foundation_depth = 60.0\n[material]\npreset = "steel"\n'
+                        '[form]\ntype = "cable-stayed"\npylons = 2\n')
+    out = tmp_path / "piers.json"
+    proc = run("solve", str(scenario), "--json", str(out))
+    assert proc.returncode == 0, proc.stderr
+    assert "reference optimum (1 pier)" in proc.stdout    # two pylons a span: one pier inside
+    assert json.loads(out.read_text())["reference_crossing"] == "1 pier"
