@@ -15,6 +15,7 @@ from typing import Any
 import numpy as np
 
 from bridgeopt.errors import SolveError
+from bridgeopt.study.crossings import crossing_name
 from bridgeopt.files.scenario import Scenario, parse_scenario
 from bridgeopt.forms import FormResult, ReferenceForm, form_problem
 from bridgeopt.solver.design import Design
@@ -126,6 +127,9 @@ def _ok_row(scenario: Scenario, design: Design, reference_volume: float,
         for name in DIMENSIONS:
             if name in form.geometry:
                 row[f"{name}_m"] = form.geometry[name]
+        if bridge is not None:  # a form on other supports is its own crossing: say which
+            row["reference_crossing"] = crossing_name(
+                getattr(form.reference, "problem", None), bridge.to_problem())
     return row
 
 

@@ -272,7 +272,8 @@ def _readme(sweep: Sweep) -> str:
              "Swept here: " + (", ".join(sweep.varied) or "nothing"), ""]
     lines += [f"{name}: {text}" for name, text in RESULT_COLUMNS.items()]
     lines += ["pylon_height_m, tower_height_m, sag_m, rise_m, deck_panel_m: main dimensions of a "
-              "solved form [m]", "", f"{JOURNAL}: the running record the tables are rebuilt from "
+              "solved form [m]", "reference_crossing: for a form, how the crossing it and its "
+              "reference stand on differs from the scenario's own (empty when the same)", "", f"{JOURNAL}: the running record the tables are rebuilt from "
               "(do not edit while a sweep runs).", ""]
     return "\n".join(lines)
 

@@ -1,5 +1,6 @@
 """Lists in sweep files: one level of list sweeps a key; a list nested deeper than a key can
-hold is refused with one line (it was flattened into cases silently before)."""
+hold is refused with one line (it was flattened into cases silently before).  And a form's
+result row names the crossing it and its reference stand on."""
 
 from __future__ import annotations
 
@@ -31,3 +32,13 @@ def test_a_list_of_numbers_sweeps_and_a_list_of_pier_lists_sweeps_pier_sets():
     with pytest.raises(InputError) as err:
         expand_sweep(_sweep(piers=[[[300.0]]]))
     assert err.value.field == "bridge.piers"
+
+
+def test_a_form_row_names_the_crossing_it_stands_on():
+    from bridgeopt.sweep.cases import solve_case
+
+    data = _sweep(span=600.0, divisions=8, depth=60.0, foundation_depth=60.0)
+    row, _ = solve_case({**data, "form": {"type": "cable-stayed", "pylons": 2}})
+    assert row["status"] == "ok" and row["reference_crossing"] == "1 pier"
+    row, _ = solve_case({**data, "form": {"type": "cable-stayed", "pylons": 1}})
+    assert row["status"] == "ok" and row["reference_crossing"] == ""
