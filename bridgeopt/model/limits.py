@@ -35,11 +35,6 @@ INTENSITY = (1.0e-6, 1.0e12)
 COORDINATE = 1.0e7
 
 
-def _shown(value: object) -> object:
-    text = repr(value)
-    return value if len(text) <= 80 else text[:72] + " ..."
-
-
 def checked_number(field: str, value: object, *, low: float, high: float, unit: str,
                    zero_ok: bool = False) -> float:
     """``value`` as a float when it is a real number in ``[low, high]`` (or 0 if allowed).
@@ -73,7 +68,7 @@ def checked_number(field: str, value: object, *, low: float, high: float, unit: 
     if ok and math.isfinite(number) and (low <= number <= high or (zero_ok and number == 0)):
         return number
     valid = f"a number from {low:g} to {high:g} {unit}"
-    raise InputError(field, _shown(value), f"0 or {valid}" if zero_ok else valid)
+    raise InputError(field, value, f"0 or {valid}" if zero_ok else valid)
 
 
 def checked_whole(field: str, value: object, *, low: int, high: int, even: bool = False) -> int:
@@ -102,5 +97,5 @@ def checked_whole(field: str, value: object, *, low: int, high: int, even: bool 
     ok = isinstance(value, numbers.Integral) and not isinstance(value, bool)
     if ok and low <= int(value) <= high and not (even and int(value) % 2):
         return int(value)
-    raise InputError(field, _shown(value), f"an {'even ' if even else ''}whole number from "
+    raise InputError(field, value, f"an {'even ' if even else ''}whole number from "
                      f"{low} to {high}")

@@ -159,15 +159,10 @@ def _expand(value: Any, path: tuple[str, ...]) -> list[Any]:
         return [case for v in value for case in _expand(v, path)]  # alternatives
     depth = _depth(value)
     if depth > LIST_DEPTH.get(path, 0) + 1:
-        raise InputError(_name(path), _short_list(value), _list_valid(path))
+        raise InputError(_name(path), value, _list_valid(path))
     if depth > LIST_DEPTH.get(path, 0):
         return [case for v in value for case in _expand(v, path)]
     return [value]
-
-
-def _short_list(value: list) -> object:
-    text = repr(value)
-    return value if len(text) <= 80 else text[:72] + " ..."
 
 
 def _list_valid(path: tuple[str, ...]) -> str:
@@ -198,7 +193,7 @@ def _count(value: Any, path: tuple[str, ...]) -> int:
         return sum(counts)
     depth = _depth(value)
     if depth > LIST_DEPTH.get(path, 0) + 1:
-        raise InputError(_name(path), _short_list(value), _list_valid(path))
+        raise InputError(_name(path), value, _list_valid(path))
     if depth > LIST_DEPTH.get(path, 0):
         return sum(_count(v, path) for v in value)
     return 1
