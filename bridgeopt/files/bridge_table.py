@@ -15,6 +15,7 @@ from bridgeopt.files.fields import (KEYS, check_keys, is_whole, number, required
 from bridgeopt.files.sections import parse_materials
 from bridgeopt.model.bridge import ARRANGEMENTS, BridgeScenario
 from bridgeopt.model.problem import MAX_CELLS
+from bridgeopt.model.limits import DECK_LOAD, HEIGHT_PER_SPAN, SPAN
 
 __all__ = ["largest_divisions", "parse_bridge"]
 
@@ -66,15 +67,20 @@ def parse_bridge(data: Mapping, name: str) -> BridgeScenario:
             raise InputError("bridge.name", inner, f"left out, or the same as the top-level "
                              f"name {data['name']!r}")
         name = inner
-    span = number("bridge.span", required("bridge", raw, "span", "a number > 0 m"),
-                  "a number > 0 m", lambda v: v > 0)
-    rise = number("bridge.rise", required("bridge", raw, "rise", "a number >= 0 m"),
-                  "a number >= 0 m", lambda v: v >= 0)
-    depth = number("bridge.depth", required("bridge", raw, "depth", "a number >= 0 m"),
-                   "a number >= 0 m", lambda v: v >= 0)
+    # the same ranges, in the same words, as BridgeScenario's own check (model/limits.py)
+    span_valid = f"a number from {SPAN[0]:g} to {SPAN[1]:g} m"
+    span = number("bridge.span", required("bridge", raw, "span", span_valid), span_valid,
+                  lambda v: SPAN[0] <= v <= SPAN[1])
+    tall = HEIGHT_PER_SPAN * span
+    height_valid = f"a number from 0 to {tall:g} m ({HEIGHT_PER_SPAN:g} spans)"
+    rise = number("bridge.rise", required("bridge", raw, "rise", height_valid), height_valid,
+                  lambda v: 0 <= v <= tall)
+    depth = number("bridge.depth", required("bridge", raw, "depth", height_valid),
+                   height_valid, lambda v: 0 <= v <= tall)
+    load_valid = f"a number from {DECK_LOAD[0]:g} to {DECK_LOAD[1]:g} N/m (downwards)"
     deck_load = number("bridge.deck_load",
-                       required("bridge", raw, "deck_load", "a number > 0 N/m"),
-                       "a number > 0 N/m (downwards)", lambda v: v > 0)
+                       required("bridge", raw, "deck_load", load_valid), load_valid,
+                       lambda v: DECK_LOAD[0] <= v <= DECK_LOAD[1])
     arrangement = raw.get("arrangement", "repeating")
     if arrangement not in ARRANGEMENTS:
         raise InputError("bridge.arrangement", short(arrangement),

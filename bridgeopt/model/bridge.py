@@ -186,7 +186,7 @@ class BridgeScenario:
             "depth": checked_number("bridge.depth", self.depth, low=0.0, high=tall,
                                     unit=f"m ({HEIGHT_PER_SPAN:g} spans)"),
             "deck_load": checked_number("bridge.deck_load", self.deck_load, low=DECK_LOAD[0],
-                                        high=DECK_LOAD[1], unit="N/m"),
+                                        high=DECK_LOAD[1], unit="N/m (downwards)"),
             "foundation_depth": checked_number("bridge.foundation_depth", self.foundation_depth,
                                                low=0.0, high=tall, zero_ok=True,
                                                unit=f"m ({HEIGHT_PER_SPAN:g} spans)"),
