@@ -8,9 +8,11 @@ bad case: a case's :class:`~bridgeopt.errors.InputError`,
 
 from __future__ import annotations
 
+import json
 import math
+import numbers
 import time
-from typing import Any
+from typing import Any, Mapping
 
 import numpy as np
 
@@ -22,7 +24,7 @@ from bridgeopt.solver.design import Design
 from bridgeopt.solver.multicase import single_case_reference
 from bridgeopt.study.solve import CASE_STATUSES, case_status, form_reference, solve_scenario
 
-__all__ = ["RESULT_COLUMNS", "STATUSES", "solve_case", "solve_reference", "reference_group",
+__all__ = ["RESULT_COLUMNS", "STATUSES", "dimension_cells", "solve_case", "solve_reference", "reference_group",
            "error_row"]
 
 #: Columns every row has after the inputs, with their units.
@@ -41,6 +43,34 @@ RESULT_COLUMNS = {
 DIMENSIONS = ("pylon_height", "tower_height", "sag", "rise", "deck_panel")
 #: Statuses of a case's row (defined with the solve, :data:`bridgeopt.study.solve.CASE_STATUSES`).
 STATUSES = CASE_STATUSES
+
+
+def dimension_cells(dimensions: Mapping[str, Any]) -> dict[str, Any]:
+    """A form's final ratios and per-stay dimensions as sweep-row cells.
+
+    Parameters
+    ----------
+    dimensions : mapping
+        :attr:`~bridgeopt.forms.solve.FormResult.dimensions` (``span_to_height``,
+        ``anchor_move_largest_m``, ``anchor_heights_m`` ...).
+
+    Returns
+    -------
+    dict
+        Numbers as floats (their unit in their name: ``_m`` metres, ratios [-]),
+        lists (one value per stay) as JSON text, texts as they are.
+    """
+    cells: dict[str, Any] = {}
+    for key, value in dimensions.items():
+        if isinstance(value, bool):
+            continue
+        if isinstance(value, numbers.Real):
+            cells[key] = float(value)
+        elif isinstance(value, str):
+            cells[key] = value
+        elif isinstance(value, (list, tuple, np.ndarray)):
+            cells[key] = json.dumps([round(float(v), 6) for v in value])
+    return cells
 
 
 def error_row(status: str, message: str, seconds: float = 0.0) -> dict[str, Any]:
@@ -127,6 +157,7 @@ def _ok_row(scenario: Scenario, design: Design, reference_volume: float,
         for name in DIMENSIONS:
             if name in form.geometry:
                 row[f"{name}_m"] = form.geometry[name]
+        row.update(dimension_cells(form.dimensions))
         if bridge is not None:  # a form on other supports is its own crossing: say which
             row["reference_crossing"] = crossing_name(
                 getattr(form.reference, "problem", None), bridge.to_problem())

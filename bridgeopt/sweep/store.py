@@ -272,7 +272,12 @@ def _readme(sweep: Sweep) -> str:
              "Swept here: " + (", ".join(sweep.varied) or "nothing"), ""]
     lines += [f"{name}: {text}" for name, text in RESULT_COLUMNS.items()]
     lines += ["pylon_height_m, tower_height_m, sag_m, rise_m, deck_panel_m: main dimensions of a "
-              "solved form [m]", "reference_crossing: for a form, how the crossing it and its "
+              "solved form [m]", "span_to_height, span_to_sag, sag_ratio, rise_ratio, span_to_rise: "
+              "final ratios of a form [-]; anchor_move_largest_m, anchor_move_mean_m, "
+              "deck_point_move_largest_m: how far the optimized stay anchors moved from the "
+              "starting pattern [m]; anchor_heights_m, stay_deck_x_m: per stay of the model, "
+              "as JSON lists [m]; start_pattern: the stay pattern the anchors started from",
+              "reference_crossing: for a form, how the crossing it and its "
               "reference stand on differs from the scenario's own (empty when the same)", "", f"{JOURNAL}: the running record the tables are rebuilt from "
               "(do not edit while a sweep runs).", ""]
     return "\n".join(lines)

@@ -368,6 +368,11 @@ def pylon_cost_figure(costs, span: float | None = None, *, title: str | None = N
         textposition="top center", marker={"symbol": "triangle-down", "size": 10,
                                            "color": PALETTE["support"]},
         name="cheapest pylon count"))
-    fig.update_layout(barmode="stack", title=title or f"Cost by pylon count, {span:,.0f} m span")
+    # the two-level bar labels (form, then count and crossing) take the space under the
+    # plot, so the legend goes above it, under the title, where nothing overlaps it
+    fig.update_layout(barmode="stack", title=title or f"Cost by pylon count, {span:,.0f} m span",
+                      height=520, margin={"l": 70, "r": 20, "t": 100, "b": 150},
+                      legend={"orientation": "h", "yanchor": "bottom", "y": 1.02, "x": 0})
+    fig.update_xaxes(tickangle=-30)
     fig.update_yaxes(title_text=f"cost [{currency}]")
     return fig
