@@ -12,7 +12,7 @@ from bridgeopt.study.solve import CASE_STATUSES, Solved, form_reference, solve_s
 from bridgeopt.study.options import *  # noqa: F401,F403
 from bridgeopt.study.options import __all__ as _options
 from bridgeopt.study.traffic import TRAFFIC, TRAFFIC_DIVISIONS, solve_traffic
-from bridgeopt.study.legs import NAME as LEGS_FORM, register_legs, solve_legs
+from bridgeopt.forms.legs import NAME as LEGS_FORM, register_legs, solve_legs
 from bridgeopt.study.trends import height_sweep, pylon_costs, pylon_sweep, span_sweep
 
 __all__ = [*_options, "TRAFFIC", "TRAFFIC_DIVISIONS", "solve_traffic", "span_sweep",

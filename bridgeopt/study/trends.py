@@ -143,7 +143,7 @@ def pylon_sweep(bridge: BridgeScenario, spans: Iterable[float], pylons: Iterable
     reference optimum on the same piers (``reference_volume_m3``).  The rows of
     the scenario's plain reference (no intermediate pier) are repeated for every
     count.  A form whose intermediate pylons the structure itself carries
-    (:data:`bridgeopt.study.LEGS_FORM`, after :func:`bridgeopt.study.register_legs`)
+    (:data:`bridgeopt.study.LEGS_FORM`, after :func:`bridgeopt.study.register_legs`; the form is in :mod:`bridgeopt.forms.legs`)
     stands on the plain crossing and is set against its plain reference.
 
     Parameters

@@ -7,7 +7,7 @@ import pytest
 
 from bridgeopt import BridgeScenario, InputError, PRESETS, study
 from bridgeopt.solver.frame import size_frame
-from bridgeopt.study.legs import legs_frame, solve_legs
+from bridgeopt.forms.legs import legs_frame, solve_legs
 from helpers import assert_equilibrium
 
 
