@@ -136,8 +136,10 @@ def form_geometry(design: Design, form_type: str, deck_z: float) -> dict:
     Returns
     -------
     dict
-        ``pylon_height``, ``tower_height``, ``sag``, ``rise`` (those the form has)
-        and ``deck_panel``, the largest distance between loaded deck nodes. [m]
+        ``pylon_height``, ``tower_height``, ``sag``, ``rise`` (those the form has),
+        a forked pylon's ``leg_lean`` (largest horizontal reach of a leg from
+        its foot) and ``leg_head_height``, and ``deck_panel``, the largest
+        distance between loaded deck nodes. [m]
     """
     m, xz = design.members, design.nodes
 
@@ -151,6 +153,12 @@ def form_geometry(design: Design, form_type: str, deck_z: float) -> dict:
         out["deck_panel"] = float(np.diff(loaded).max())
     if form_type == "cable-stayed" and (m.group == "pylon").any():
         out["pylon_height"] = float(ends("pylon")[:, 1].max() - deck_z)
+    if form_type == "cable-stayed" and (m.group == "pylon leg").any():
+        legs = m.group == "pylon leg"      # forked pylon: foot (lower end) to head
+        lean = np.abs(xz[m.end[legs], 0] - xz[m.start[legs], 0])
+        out["leg_lean"] = float(lean.max())
+        out["leg_head_height"] = float(np.maximum(xz[m.end[legs], 1], xz[m.start[legs], 1]).max()
+                                       - deck_z)
     if form_type == "suspension" and (m.group == "cable").any():
         z = ends("cable")[:, 1]
         out["tower_height"] = float(z.max() - deck_z)
