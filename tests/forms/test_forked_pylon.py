@@ -23,6 +23,8 @@ and the mast carries beta (H - h) over its height H.  Hence
 
 from __future__ import annotations
 
+import itertools
+
 import numpy as np
 import pytest
 
@@ -31,7 +33,7 @@ from bridgeopt import (PRESETS, BridgeScenario, Domain, InputError, LineLoad, Ma
 from bridgeopt.forms import CableStayedForm, form_problem, parse_form, solve_form
 from bridgeopt.forms.builder import FrameBuilder
 from bridgeopt.forms.forked import candidate_frame, forked_frame
-from bridgeopt.solver.frame import size_frame
+from bridgeopt.solver.frame import Frame, size_frame
 from helpers import assert_equilibrium
 
 A = 120.0        # deck length served by the pylon [m]
@@ -131,6 +133,25 @@ def test_forked_pylon_against_the_reference_on_a_small_grid(span):
                    m.start[stay], m.end[stay])
     steps = r.design.nodes[low, 0] / b.spacing
     np.testing.assert_allclose(steps, np.round(steps), atol=1e-9)
+
+
+@pytest.mark.parametrize("span, divisions", [(1000.0, 6), (5000.0, 8)])
+def test_a_ground_structure_with_the_forms_nodes_bounds_it_on_a_coarse_grid(span, divisions):
+    """On a coarse grid the form's off-grid leg heads and anchors can beat the grid reference
+    (solve_form warns); the least-volume structure over every pair of the grid nodes and the
+    form's own nodes contains the form's members, so it bounds the form (LP duality, Dorn,
+    Gomory and Greenberg 1964)."""
+    b = steel(span, divisions)
+    r = solve_form(b, CableStayedForm(pylon="forked"), compare=False)
+    problem = r.design.problem
+    s = problem.spacing
+    x0, x1, z0, z1 = problem.domain.bounds
+    grid = [(x0 + i * s, z0 + j * s) for i in range(round((x1 - x0) / s) + 1)
+            for j in range(round((z1 - z0) / s) + 1)]
+    nodes = np.array(sorted({tuple(np.round(p, 6)) for p in [*grid, *r.design.nodes]}))
+    pairs = np.array(list(itertools.combinations(range(len(nodes)), 2)))
+    bound = size_frame(Frame(problem=problem, nodes=nodes, start=pairs[:, 0], end=pairs[:, 1]))
+    assert bound.volume <= r.volume * (1 + 1e-7)
 
 
 def test_a_single_span_forked_pylon_is_bounded_by_its_reference():
