@@ -219,8 +219,10 @@ def dimension_lines(dimensions: dict) -> list[str]:
     out = [f"  {k.replace('_', ' ')}: {d[k]:.4g}" for k in
            ("span_to_height", "sag_ratio", "span_to_sag", "rise_ratio", "span_to_rise") if k in d]
     if "anchor_move_largest_m" in d:
-        out.append(f"  stay anchors moved from the {d['start_pattern']} pattern (at its best "
-                   f"height) by up to {d['anchor_move_largest_m']:.4g} m (mean "
+        start = ("the stays the LP chose at the start" if d["start_pattern"] == "chosen"
+                 else f"the {d['start_pattern']} pattern (at its best height)")
+        out.append(f"  stay anchors moved from {start} by up to "
+                   f"{d['anchor_move_largest_m']:.4g} m (mean "
                    f"{d['anchor_move_mean_m']:.4g} m); deck points by up to "
                    f"{d['deck_point_move_largest_m']:.4g} m")
     if "anchor_heights_m" in d:
@@ -271,7 +273,8 @@ def form_dimensions(design: Design, pattern: Design, spec, bridge: BridgeScenari
         out["stay_deck_x_m"] = x.tolist()
         out["anchor_heights_m"] = (z - deck_z).tolist()
         x0, z0 = _stay_anchors(pattern)
-        out["start_pattern"] = spec.pattern
+        # a forked pylon starts from the stays the LP chose, not from a pattern
+        out["start_pattern"] = "chosen" if getattr(spec, "pylon", "") == "forked" else spec.pattern
         if len(z0) == len(z) and len(z):
             moved = np.hypot(x - x0, z - z0)
             out["anchor_move_largest_m"] = float(np.abs(z - z0).max())

@@ -72,8 +72,9 @@ class FormResult:
         Ratios and per-member dimensions of the final form: cable-stayed
         ``span_to_height`` [-] (pylon spacing over pylon height),
         ``anchor_heights_m`` and ``stay_deck_x_m`` (per stay of the model, by deck
-        x) [m], ``start_pattern``, and how far the optimized anchors moved from
-        the pattern at its best pylon height, ``anchor_move_largest_m``,
+        x) [m], ``start_pattern`` (``"chosen"`` for a forked pylon), and how far
+        the optimized anchors moved from the pattern at its best pylon height
+        (a forked pylon: from the stays the LP chose), ``anchor_move_largest_m``,
         ``anchor_move_mean_m``, ``deck_point_move_largest_m`` [m]; suspension
         ``sag_ratio`` and ``span_to_sag`` [-]; arch ``rise_ratio`` and
         ``span_to_rise`` [-].

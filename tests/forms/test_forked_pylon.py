@@ -126,6 +126,8 @@ def test_forked_pylon_against_the_reference_on_a_small_grid(span):
     assert {"stay", "pylon", "pylon leg", "head tie", "deck"} <= groups
     assert 0 < r.geometry["leg_lean"] < 0.5 * span
     assert 0 < r.geometry["leg_head_height"] <= 0.5 * span * (1 + 1e-9)
+    assert r.dimensions["start_pattern"] == "chosen"
+    assert "moved from the stays the LP chose" in r.summary()
     # straight stays end at the deck's grid points (no deck slide)
     m = r.design.members
     stay = m.group == "stay"
