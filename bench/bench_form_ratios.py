@@ -5,7 +5,8 @@ spans, rise = span/2 above the deck, no depth below it, deck load 200 kN/m, S355
 steel (355 MPa, 7850 kg/m3) with self-weight, 30 divisions across the span.  For
 each span the reference optimum is solved once; the cable-stayed fan, semi-fan
 and harp patterns (every anchor height, every stay's deck point and the pylon
-height free) and the suspension form (every cable node's height, the tower
+height free), the forked pylon (``pylon = "forked"``: stays chosen by the LP,
+then every anchor, the mast top and the leg heads free) and the suspension form (every cable node's height, the tower
 height and the hanger positions free) are sized, geometry-optimized and
 compared with it.
 
@@ -31,6 +32,7 @@ FORMS = {
     "cable-stayed fan": CableStayedForm(pattern="fan"),
     "cable-stayed semi-fan": CableStayedForm(pattern="semi-fan"),
     "cable-stayed harp": CableStayedForm(pattern="harp"),
+    "cable-stayed forked pylon": CableStayedForm(pylon="forked"),
     "suspension": SuspensionForm(),
 }
 

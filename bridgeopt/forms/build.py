@@ -41,6 +41,7 @@ from bridgeopt.forms.arch import arch_frame
 from bridgeopt.forms.backspan import with_back_spans
 from bridgeopt.forms.builder import available_heights, deck_level, funicular_heights
 from bridgeopt.forms.cable_stayed import cable_stayed_frame
+from bridgeopt.forms.forked import forked_frame, forked_start
 from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
 from bridgeopt.forms.suspension import suspension_frame
 
@@ -317,6 +318,12 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                               LEAST_RATIO * reach, rise, "bridge.rise", bridge.rise,
                               "a pylon above the deck")
             anchor_bounds = (CLEARANCE * rise, rise) if spec.anchors == "free" else None
+        if spec.pylon == "forked":
+            pylons_x = _pylon_positions(bridge, spec.pylons)
+            h, lean, head = forked_start(problem, pylons_x=pylons_x, reach=reach, rise=rise,
+                                         height=start.get("pylon_height"))
+            return forked_frame(problem, pylons_x=pylons_x, reach=reach, height=h,
+                                anchor_bounds=anchor_bounds, lean=lean, head=head)
         return with_back_spans(*cable_stayed_frame(
             problem, pylons_x=_pylon_positions(bridge, spec.pylons), reach=reach,
             pattern=spec.pattern, stays=spec.stays or _stays(bridge, reach), height=h,

@@ -36,7 +36,8 @@ import numpy as np
 from bridgeopt.errors import InputError
 from bridgeopt.forms.builder import FrameBuilder, deck_level
 
-__all__ = ["cable_stayed_frame", "anchor_fractions", "FAN_SPREAD", "DECK_SLIDE"]
+__all__ = ["cable_stayed_frame", "anchor_fractions", "free_anchors", "FAN_SPREAD", "LEAST_GAP",
+           "DECK_SLIDE"]
 
 #: Free anchors of a fan start spread over this top part of the pylon height. [-]
 FAN_SPREAD = 0.02
@@ -143,13 +144,31 @@ def cable_stayed_frame(problem, *, pylons_x, reach: float, pattern: str, stays: 
                 moves[(b.node(xp, zd + f * height), 1)] = f
         b.parameter("pylon height", height_bounds[0] - height, height_bounds[1] - height, moves)
     if free:
-        _free_anchors(b, columns, deck_points, pylons_x, zd, anchor_bounds, deck_slide)
+        free_anchors(b, columns, deck_points, pylons_x, zd, anchor_bounds, deck_slide)
     return b.build()
 
 
-def _free_anchors(b: FrameBuilder, columns, deck_points, pylons_x, zd: float,
-                  anchor_bounds, deck_slide: float) -> None:
-    """Top and gap parameters on each pylon, and a slide parameter per stay's deck point."""
+def free_anchors(b: FrameBuilder, columns, deck_points, pylons_x, zd: float,
+                 anchor_bounds, deck_slide: float) -> None:
+    """Top and gap parameters on each pylon, and a slide parameter per stay's deck point.
+
+    Parameters
+    ----------
+    b : FrameBuilder
+        The form's builder (parameters are added to it).
+    columns : list of list of int
+        Each pylon's nodes from its foot (at the deck) up. [-]
+    deck_points : sequence of int
+        Stays' deck nodes that may slide (none when ``deck_slide`` is 0). [-]
+    pylons_x : sequence of float
+        x of each pylon. [m]
+    zd : float
+        Deck height. [m]
+    anchor_bounds : (float, float)
+        Lowest and highest anchor height above the deck. [m]
+    deck_slide : float
+        Largest slide of a deck point, in grid steps. [-]
+    """
     gap = LEAST_GAP * b.problem.spacing
     low, high = anchor_bounds
     for k, column in enumerate(columns):

@@ -136,8 +136,10 @@ def form_geometry(design: Design, form_type: str, deck_z: float) -> dict:
     Returns
     -------
     dict
-        ``pylon_height``, ``tower_height``, ``sag``, ``rise`` (those the form has)
-        and ``deck_panel``, the largest distance between loaded deck nodes. [m]
+        ``pylon_height``, ``tower_height``, ``sag``, ``rise`` (those the form has),
+        a forked pylon's ``leg_lean`` (largest horizontal reach of a leg from
+        its foot) and ``leg_head_height``, and ``deck_panel``, the largest
+        distance between loaded deck nodes. [m]
     """
     m, xz = design.members, design.nodes
 
@@ -151,6 +153,12 @@ def form_geometry(design: Design, form_type: str, deck_z: float) -> dict:
         out["deck_panel"] = float(np.diff(loaded).max())
     if form_type == "cable-stayed" and (m.group == "pylon").any():
         out["pylon_height"] = float(ends("pylon")[:, 1].max() - deck_z)
+    if form_type == "cable-stayed" and (m.group == "pylon leg").any():
+        legs = m.group == "pylon leg"      # forked pylon: foot (lower end) to head
+        lean = np.abs(xz[m.end[legs], 0] - xz[m.start[legs], 0])
+        out["leg_lean"] = float(lean.max())
+        out["leg_head_height"] = float(np.maximum(xz[m.end[legs], 1], xz[m.start[legs], 1]).max()
+                                       - deck_z)
     if form_type == "suspension" and (m.group == "cable").any():
         z = ends("cable")[:, 1]
         out["tower_height"] = float(z.max() - deck_z)
@@ -211,8 +219,10 @@ def dimension_lines(dimensions: dict) -> list[str]:
     out = [f"  {k.replace('_', ' ')}: {d[k]:.4g}" for k in
            ("span_to_height", "sag_ratio", "span_to_sag", "rise_ratio", "span_to_rise") if k in d]
     if "anchor_move_largest_m" in d:
-        out.append(f"  stay anchors moved from the {d['start_pattern']} pattern (at its best "
-                   f"height) by up to {d['anchor_move_largest_m']:.4g} m (mean "
+        start = ("the stays the LP chose at the start" if d["start_pattern"] == "chosen"
+                 else f"the {d['start_pattern']} pattern (at its best height)")
+        out.append(f"  stay anchors moved from {start} by up to "
+                   f"{d['anchor_move_largest_m']:.4g} m (mean "
                    f"{d['anchor_move_mean_m']:.4g} m); deck points by up to "
                    f"{d['deck_point_move_largest_m']:.4g} m")
     if "anchor_heights_m" in d:
@@ -263,7 +273,8 @@ def form_dimensions(design: Design, pattern: Design, spec, bridge: BridgeScenari
         out["stay_deck_x_m"] = x.tolist()
         out["anchor_heights_m"] = (z - deck_z).tolist()
         x0, z0 = _stay_anchors(pattern)
-        out["start_pattern"] = spec.pattern
+        # a forked pylon starts from the stays the LP chose, not from a pattern
+        out["start_pattern"] = "chosen" if getattr(spec, "pylon", "") == "forked" else spec.pattern
         if len(z0) == len(z) and len(z):
             moved = np.hypot(x - x0, z - z0)
             out["anchor_move_largest_m"] = float(np.abs(z - z0).max())

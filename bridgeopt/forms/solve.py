@@ -65,14 +65,16 @@ class FormResult:
         :func:`group_quantities`).
     geometry : dict
         Main dimensions of the final form: ``pylon_height``, ``tower_height``,
-        ``sag`` or ``rise``, and ``deck_panel``, the largest distance between
+        ``sag`` or ``rise``, a forked pylon's ``leg_lean`` and
+        ``leg_head_height``, and ``deck_panel``, the largest distance between
         the deck's loaded nodes (where stays, hangers or columns hold it). [m]
     dimensions : dict
         Ratios and per-member dimensions of the final form: cable-stayed
         ``span_to_height`` [-] (pylon spacing over pylon height),
         ``anchor_heights_m`` and ``stay_deck_x_m`` (per stay of the model, by deck
-        x) [m], ``start_pattern``, and how far the optimized anchors moved from
-        the pattern at its best pylon height, ``anchor_move_largest_m``,
+        x) [m], ``start_pattern`` (``"chosen"`` for a forked pylon), and how far
+        the optimized anchors moved from the pattern at its best pylon height
+        (a forked pylon: from the stays the LP chose), ``anchor_move_largest_m``,
         ``anchor_move_mean_m``, ``deck_point_move_largest_m`` [m]; suspension
         ``sag_ratio`` and ``span_to_sag`` [-]; arch ``rise_ratio`` and
         ``span_to_rise`` [-].
@@ -247,7 +249,7 @@ def start_spec(spec: FormSpec) -> FormSpec:
     FormSpec
         ``spec`` with ``anchors = "pattern"`` for a cable-stayed form, else ``spec``.
     """
-    if isinstance(spec, CableStayedForm) and spec.anchors == "free":
+    if isinstance(spec, CableStayedForm) and spec.anchors == "free" and spec.pylon == "vertical":
         return dataclasses.replace(spec, anchors="pattern")
     return spec
 
@@ -270,10 +272,11 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
             value = form_geometry(best, spec.type, deck_level(problem)[2])
             frame, moves = build_form(bridge, spec, problem, start=value)
     best = _polish(frame, moves, best, spec.type)
-    stage1 = best
+    # a forked pylon's anchors are measured from the stays the LP chose at the start
+    stage1 = start if getattr(spec, "pylon", None) == "forked" else best
     free = None
     if isinstance(spec, CableStayedForm) and spec.anchors == "free" \
-            and spec.span_to_height is None:
+            and spec.span_to_height is None and spec.pylon == "vertical":
         free = spec, {"pylon_height": form_geometry(best, spec.type, deck_level(problem)[2])
                       ["pylon_height"]}
     elif isinstance(spec, SuspensionForm) and spec.shape != "free" and spec.sag_ratio is None \

@@ -28,6 +28,7 @@ __all__ = ["FORM_TYPES", "ReferenceForm", "CableStayedForm", "SuspensionForm", "
 FORM_TYPES = ("reference", "cable-stayed", "suspension", "arch")
 STAY_PATTERNS = ("fan", "semi-fan", "harp")
 ANCHOR_RULES = ("free", "pattern")
+PYLON_SHAPES = ("vertical", "forked")
 SHAPES = ("funicular", "parabolic", "free")
 ARCH_VARIANTS = ("deck-arch", "through-arch")
 
@@ -106,6 +107,16 @@ class CableStayedForm:
         optimized too (the anchors keep their order up the pylon); "pattern"
         keeps the pattern, the pylon height its one free dimension.  A given
         ``span_to_height`` keeps the pattern either way.
+    pylon : {"vertical", "forked"}
+        "vertical": one vertical pylon column, one straight stay per deck grid
+        point (the ``pattern``).  "forked": a vertical mast and, on each side,
+        an inclined leg from the same pylon foot leaning over that side's deck,
+        its head tied back to the mast top; the stays are chosen by the LP among
+        candidates from every mast level and the leg heads to every deck grid
+        point, then every anchor height, the mast top and the leg heads are
+        optimized (:mod:`bridgeopt.forms.forked`).  With "forked", ``pattern``
+        is not used and ``stays``, ``span_to_height`` and ``anchor_zone`` are
+        left out, ``anchors = "free"``.
     """
 
     type = "cable-stayed"
@@ -115,10 +126,23 @@ class CableStayedForm:
     span_to_height: float | None = None
     anchor_zone: float | None = None
     anchors: str = "free"
+    pylon: str = "vertical"
 
     def __post_init__(self) -> None:
         _choice("form.pattern", self.pattern, STAY_PATTERNS)
         _choice("form.anchors", self.anchors, ANCHOR_RULES)
+        _choice("form.pylon", self.pylon, PYLON_SHAPES)
+        if self.pylon == "forked":
+            for key, value, why in (
+                    ("stays", self.stays, "the LP chooses the stays"),
+                    ("span_to_height", self.span_to_height, "the mast height is free"),
+                    ("anchor_zone", self.anchor_zone, "the LP chooses the anchors")):
+                if value is not None:
+                    raise InputError(f"form.{key}", value,
+                                     f"left out with pylon = 'forked' ({why})")
+            if self.anchors != "free":
+                raise InputError("form.anchors", self.anchors,
+                                 "'free' with pylon = 'forked' (every anchor is optimized)")
         if self.stays is not None:
             _whole("form.stays", self.stays, 1, MAX_PANELS, "stays per side of a pylon")
         _whole("form.pylons", self.pylons, 1, MAX_PYLONS, "pylons per span")
