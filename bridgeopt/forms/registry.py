@@ -36,6 +36,7 @@ _PACKAGE_FORMS = {
     "cable-stayed fan": ("cable-stayed", {"pattern": "fan"}),
     "cable-stayed semi-fan": ("cable-stayed", {"pattern": "semi-fan"}),
     "cable-stayed harp": ("cable-stayed", {"pattern": "harp"}),
+    "cable-stayed, forked pylon": ("cable-stayed", {"pylon": "forked"}),
     "suspension": ("suspension", {}),
     "arch": ("arch", {}),
 }
