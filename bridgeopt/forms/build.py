@@ -370,7 +370,8 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
         def make(profile):
             return with_back_spans(*suspension_frame(
                 problem, panels=n, tower=tower, sag=sag, shape=spec.shape, profile=profile,
-                sag_bounds=sag_bounds, tower_bounds=tower_bounds, height_bounds=height_bounds))
+                sag_bounds=sag_bounds, tower_bounds=tower_bounds, height_bounds=height_bounds,
+                lean=spec.hanger_lean))
         x = xs + (xe - xs) * np.arange(n + 1) / n
         return _shaped(make, spec.shape, problem, x, zd + tower, zd + tower - sag, "tension",
                        "tension")
