@@ -162,6 +162,11 @@ class SuspensionForm:
         cable node may move from above its deck point towards the tower
         (inclined hangers; the deck points stay on the grid); 0 keeps the
         hangers vertical. [-]
+    tower_legs : int
+        0: vertical towers.  From 1: V-shaped towers in elevation, each with an
+        inclined compression leg on either side from the tower foot to the main
+        cable at the ``tower_legs``-th hanger from the tower (fewer than the
+        hangers of a half span), beside the vertical tower. [-]
     """
 
     type = "suspension"
@@ -170,6 +175,7 @@ class SuspensionForm:
     tower_height: float | None = None
     shape: str = "funicular"
     hanger_lean: float = 1.0
+    tower_legs: int = 0
 
     def __post_init__(self) -> None:
         _spacing("form.spacing", self.spacing)
@@ -182,6 +188,9 @@ class SuspensionForm:
                 or not 0 <= self.hanger_lean <= MAX_LEAN:
             raise InputError("form.hanger_lean", self.hanger_lean,
                              f"a number of hanger panels from 0 (vertical hangers) to {MAX_LEAN:g}")
+        _whole("form.tower_legs", self.tower_legs, 0, MAX_PANELS - 1,
+               "0 for vertical towers, or the hanger from the tower at which a V-shaped "
+               "tower's inclined leg meets the cable")
 
     def to_dict(self) -> dict:
         """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""

@@ -9,7 +9,8 @@ shape the cable node at t = (x - x_s)/(x_e - x_s) hangs at
 sag is one parameter; with the free shape every cable node's height is its own
 parameter, and with ``lean`` the hangers incline towards the tower, each cable
 node's x free within ``lean`` panels of its deck point (the deck points stay on
-the grid).  The tower top's horizontal force is balanced by the next span
+the grid).  With ``legs`` the tower is V-shaped in elevation: an inclined leg
+from its foot meets the cable a few panels into the span.  The tower top's horizontal force is balanced by the next span
 (mirror line, repeating spans) or by an anchorage behind the abutment.
 """
 
@@ -50,7 +51,8 @@ def parabola(t) -> np.ndarray:
 def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: str = "parabolic",
                      profile=None, sag_bounds: tuple[float, float] | None = None,
                      tower_bounds: tuple[float, float] | None = None,
-                     height_bounds: tuple[float, float] | None = None, lean: float = 0.0):
+                     height_bounds: tuple[float, float] | None = None, lean: float = 0.0,
+                     legs: int = 0):
     """Frame (and free sag or cable heights, if any) of a suspension form on ``problem``.
 
     Parameters
@@ -87,6 +89,11 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
         a move that would put a cable node past its neighbour, or past the tower
         line, is refused by the geometry optimization). [-]
 
+    legs : int
+        0: a vertical tower only; from 1 to ``panels - 1``: a V-shaped tower in
+        elevation, an inclined compression leg from the tower foot to the cable
+        node of the ``legs``-th hanger from the tower (its mirror image on the
+        other side of a pier line), beside the vertical tower. [-]
     Returns
     -------
     Frame, NodeMoves or None
@@ -117,6 +124,10 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
             b.member(deck, node, "tension", "hanger")
         cable.append(node)
     b.chain(cable, "tension", "cable")
+    if not 0 <= legs < panels:
+        raise ValueError(f"legs must be a whole number from 0 to {panels - 1}, not {legs!r}")
+    if legs:
+        b.member(base, cable[legs], "compression", "tower")
     b.deck()
     if shape != "free":
         if sag_bounds is not None:
