@@ -10,7 +10,8 @@ sag is one parameter; with the free shape every cable node's height is its own
 parameter, and with ``lean`` the hangers incline towards the tower, each cable
 node's x free within ``lean`` panels of its deck point (the deck points stay on
 the grid).  With ``legs`` the tower is V-shaped in elevation: an inclined leg
-from its foot meets the cable a few panels into the span.  The tower top's horizontal force is balanced by the next span
+from its foot meets the cable a few panels into the span.  The tower top's
+horizontal force is balanced by the next span
 (mirror line, repeating spans) or by an anchorage behind the abutment.
 """
 
@@ -19,16 +20,18 @@ from __future__ import annotations
 import numpy as np
 
 from bridgeopt.forms.builder import FrameBuilder, deck_level
+from bridgeopt.geometry.moves import MIN_REACH
+from bridgeopt.solver.layout import scales
 
 __all__ = ["suspension_frame", "parabola", "LEAN_START", "LEAN_GAP"]
 
-#: Starting lean of an inclined hanger: its cable node's offset from its deck point, as a
-#: part of the panel (a small lean, not vertical, whose element formulas are singular
-#: in x). [-]
+#: Starting lean of an inclined hanger: its cable node's offset towards the tower from its
+#: deck point, as a part of the panel (small, since the start is the vertical-hanger
+#: funicular; not vertical, since a vertical element's formulas are singular in x). [-]
 LEAN_START = 0.002
-#: Least horizontal reach of an inclined hanger, and least distance of a cable node from
-#: the tower line, as a part of the panel (no hanger turns vertical). [-]
-LEAN_GAP = 0.01
+#: Least lean of an inclined hanger, and least distance of a cable node from the tower
+#: line, as a part of the panel (no hanger turns vertical). [-]
+LEAN_GAP = 0.001
 
 
 def parabola(t) -> np.ndarray:
@@ -84,11 +87,10 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
     lean : float
         Free shape: 0 keeps the hangers vertical; > 0 inclines them towards the
         tower, each cable node between the tower and the mirror line starting
-        :data:`LEAN_START` of a panel towards the tower from its deck point, its
-        x free up to ``lean`` panels from it (the deck points stay on their grid;
+        :data:`LEAN_START` of a panel towards the tower from its deck point (or
+        twice the least reach the node moves accept, if more), its x free up to ``lean`` panels from it (the deck points stay on their grid;
         a move that would put a cable node past its neighbour, or past the tower
         line, is refused by the geometry optimization). [-]
-
     legs : int
         0: a vertical tower only; from 1 to ``panels - 1``: a V-shaped tower in
         elevation, an inclined compression leg from the tower foot to the cable
@@ -111,14 +113,16 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
     if not (np.isfinite(lean) and lean >= 0):
         raise ValueError(f"lean must be a number of panels >= 0, not {lean!r}")
     panel = (xe - xs) / panels
+    # twice the least reach the node moves accept for an inclined member, at least
+    gap = max(LEAN_GAP * panel, 2 * MIN_REACH * scales(problem)[0])
+    start = max(LEAN_START * panel, 2 * gap)
     for j, (xi, zi) in enumerate(zip(x[1:], cable_z[1:]), start=1):
         deck = b.node(xi, zd)
         if lean and j < panels:     # the mirror-line hanger stays vertical
-            node = b.node(xi - LEAN_START * panel, zi)
+            node = b.node(xi - start, zi)
             b.member(node, deck, "tension", "hanger")
-            reach = min(lean * panel, xi - xs - LEAN_GAP * panel)   # not past the tower line
-            b.parameter(f"hanger lean {j}", -(reach - LEAN_START * panel),
-                        (LEAN_START - LEAN_GAP) * panel, {(node, 0): 1.0})
+            reach = min(lean * panel, xi - xs - gap)   # not past the tower line
+            b.parameter(f"hanger lean {j}", start - reach, start - gap, {(node, 0): 1.0})
         else:
             node = b.node(xi, zi)
             b.member(deck, node, "tension", "hanger")
