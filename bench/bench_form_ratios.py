@@ -6,8 +6,11 @@ steel (355 MPa, 7850 kg/m3) with self-weight, 30 divisions across the span.  For
 each span the reference optimum is solved once; the cable-stayed fan, semi-fan
 and harp patterns (every anchor height, every stay's deck point and the pylon
 height free), the forked pylon (``pylon = "forked"``: stays chosen by the LP,
-then every anchor, the mast top and the leg heads free) and the suspension form (every cable node's height, the tower
-height and the hanger positions free) are sized, geometry-optimized and
+then every anchor, the mast top and the leg heads free) and the suspension form
+(every cable node's height, the tower height and the hanger positions free:
+inclined hangers, each cable node up to one panel towards the tower from its
+deck point), and the same with V-shaped towers (an inclined leg from each tower
+foot to the cable at the 4th hanger), are sized, geometry-optimized and
 compared with it.
 
 Usage::
@@ -34,6 +37,7 @@ FORMS = {
     "cable-stayed harp": CableStayedForm(pattern="harp"),
     "cable-stayed forked pylon": CableStayedForm(pylon="forked"),
     "suspension": SuspensionForm(),
+    "suspension, V-towers (tower_legs 4)": SuspensionForm(tower_legs=4),
 }
 
 

@@ -373,11 +373,16 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
         if spec.shape == "free":
             height_bounds = (least, rise)
         n = _panels(bridge, spec.spacing)
+        if spec.tower_legs >= n:
+            raise InputError("form.tower_legs", spec.tower_legs,
+                             f"a whole number from 0 to {n - 1} (the hangers of a half span "
+                             f"between tower and mid-span, spacing {(xe - xs) / n:.6g} m)")
 
         def make(profile):
             return with_back_spans(*suspension_frame(
                 problem, panels=n, tower=tower, sag=sag, shape=spec.shape, profile=profile,
-                sag_bounds=sag_bounds, tower_bounds=tower_bounds, height_bounds=height_bounds))
+                sag_bounds=sag_bounds, tower_bounds=tower_bounds, height_bounds=height_bounds,
+                lean=spec.hanger_lean, legs=spec.tower_legs))
         x = xs + (xe - xs) * np.arange(n + 1) / n
         return _shaped(make, spec.shape, problem, x, zd + tower, zd + tower - sag, "tension",
                        "tension")

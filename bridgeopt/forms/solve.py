@@ -262,7 +262,8 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
     :func:`_funicular_search`, then its node moves); (2) every free dimension from
     there: each stay's anchor height and deck point (cable-stayed, ``anchors =
     "free"``), or each cable or rib node's height, the tower height and the
-    hanger positions (a free sag or rise with a funicular or parabolic start).
+    hanger positions, the hangers inclining towards the tower by up to ``hanger_lean``
+    panels (a free sag or rise with a funicular or parabolic start).
     Returns (final design, design at the end of stage 1).
     """
     best = start

@@ -38,6 +38,8 @@ MAX_PANELS = 200
 ANCHOR_ZONE = 0.25
 #: Most pylons per span.
 MAX_PYLONS = 20
+#: Largest lean of an inclined suspension hanger, in hanger panels. [-]
+MAX_LEAN = 10.0
 
 
 def _whole(field: str, value: object, low: int, high: int, what: str) -> int:
@@ -162,7 +164,7 @@ class CableStayedForm:
 
 @dataclass(frozen=True, kw_only=True)
 class SuspensionForm:
-    """A suspension form: main cable, vertical hangers, towers, deck.
+    """A suspension form: main cable, hangers, towers, deck.
 
     Parameters
     ----------
@@ -178,6 +180,17 @@ class SuspensionForm:
         Cable nodes on the funicular polygon of the form's own loads (deck load
         and self-weight), or on a parabola, with the sag as the one free
         parameter; or each cable node's height free (starting from the funicular).
+    hanger_lean : float
+        With every cable node free (``shape = "free"``, or the free stage after
+        a free sag and tower height): how far, in hanger panels, each hanger's
+        cable node may move from above its deck point towards the tower
+        (inclined hangers; the deck points stay on the grid); 0 keeps the
+        hangers vertical. [-]
+    tower_legs : int
+        0: vertical towers.  From 1: V-shaped towers in elevation, each with an
+        inclined compression leg on either side from the tower foot to the main
+        cable at the ``tower_legs``-th hanger from the tower (fewer than the
+        hangers of a half span), beside the vertical tower. [-]
     """
 
     type = "suspension"
@@ -185,6 +198,8 @@ class SuspensionForm:
     sag_ratio: float | None = None
     tower_height: float | None = None
     shape: str = "funicular"
+    hanger_lean: float = 1.0
+    tower_legs: int = 0
 
     def __post_init__(self) -> None:
         _spacing("form.spacing", self.spacing)
@@ -193,6 +208,13 @@ class SuspensionForm:
         _ratio("form.tower_height", self.tower_height,
                "a number > 0 m, or left out (the rise of the design domain)")
         _choice("form.shape", self.shape, SHAPES)
+        if isinstance(self.hanger_lean, bool) or not isinstance(self.hanger_lean, numbers.Real) \
+                or not 0 <= self.hanger_lean <= MAX_LEAN:
+            raise InputError("form.hanger_lean", self.hanger_lean,
+                             f"a number of hanger panels from 0 (vertical hangers) to {MAX_LEAN:g}")
+        _whole("form.tower_legs", self.tower_legs, 0, MAX_PANELS - 1,
+               "0 for vertical towers, or the hanger from the tower at which a V-shaped "
+               "tower's inclined leg meets the cable")
 
     def to_dict(self) -> dict:
         """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""

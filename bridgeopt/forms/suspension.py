@@ -1,4 +1,4 @@
-"""Suspension topology: main cable, vertical hangers, tower, deck (half span).
+"""Suspension topology: main cable, hangers, tower, deck (half span).
 
 The tower stands at the pier or abutment line x = x_s and carries the main
 cable at height ``tower`` above the deck; the cable sags by ``sag`` to its
@@ -7,7 +7,11 @@ spacings join each deck node to the cable node above it.  With the parabolic
 shape the cable node at t = (x - x_s)/(x_e - x_s) hangs at
 ``tower - sag (2t - t^2)`` (a parabola with its vertex at mid-span), so a free
 sag is one parameter; with the free shape every cable node's height is its own
-parameter.  The tower top's horizontal force is balanced by the next span
+parameter, and with ``lean`` the hangers incline towards the tower, each cable
+node's x free within ``lean`` panels of its deck point (the deck points stay on
+the grid).  With ``legs`` the tower is V-shaped in elevation: an inclined leg
+from its foot meets the cable a few panels into the span.  The tower top's
+horizontal force is balanced by the next span
 (mirror line, repeating spans) or by an anchorage behind the abutment.
 """
 
@@ -16,8 +20,18 @@ from __future__ import annotations
 import numpy as np
 
 from bridgeopt.forms.builder import FrameBuilder, deck_level
+from bridgeopt.geometry.moves import MIN_REACH
+from bridgeopt.solver.layout import scales
 
-__all__ = ["suspension_frame", "parabola"]
+__all__ = ["suspension_frame", "parabola", "LEAN_START", "LEAN_GAP"]
+
+#: Starting lean of an inclined hanger: its cable node's offset towards the tower from its
+#: deck point, as a part of the panel (small, since the start is the vertical-hanger
+#: funicular; not vertical, since a vertical element's formulas are singular in x). [-]
+LEAN_START = 0.002
+#: Least lean of an inclined hanger, and least distance of a cable node from the tower
+#: line, as a part of the panel (no hanger turns vertical). [-]
+LEAN_GAP = 0.001
 
 
 def parabola(t) -> np.ndarray:
@@ -40,7 +54,8 @@ def parabola(t) -> np.ndarray:
 def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: str = "parabolic",
                      profile=None, sag_bounds: tuple[float, float] | None = None,
                      tower_bounds: tuple[float, float] | None = None,
-                     height_bounds: tuple[float, float] | None = None):
+                     height_bounds: tuple[float, float] | None = None, lean: float = 0.0,
+                     legs: int = 0):
     """Frame (and free sag or cable heights, if any) of a suspension form on ``problem``.
 
     Parameters
@@ -69,7 +84,18 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
     height_bounds : (float, float), optional
         Free shape: least and largest height of a cable node above the deck; the
         mid-span node moves only when ``sag_bounds`` is also given. [m]
-
+    lean : float
+        Free shape: 0 keeps the hangers vertical; > 0 inclines them towards the
+        tower, each cable node between the tower and the mirror line starting
+        :data:`LEAN_START` of a panel towards the tower from its deck point (or
+        twice the least reach the node moves accept, if more), its x free up to ``lean`` panels from it (the deck points stay on their grid;
+        a move that would put a cable node past its neighbour, or past the tower
+        line, is refused by the geometry optimization). [-]
+    legs : int
+        0: a vertical tower only; from 1 to ``panels - 1``: a V-shaped tower in
+        elevation, an inclined compression leg from the tower foot to the cable
+        node of the ``legs``-th hanger from the tower (its mirror image on the
+        other side of a pier line), beside the vertical tower. [-]
     Returns
     -------
     Frame, NodeMoves or None
@@ -83,11 +109,29 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
     b.foundation(xs, base)
     cable = [b.node(x[0], cable_z[0])]
     b.member(base, cable[0], "compression", "tower")
-    for xi, zi in zip(x[1:], cable_z[1:]):
-        node = b.node(xi, zi)
+    lean = float(lean) if shape == "free" else 0.0
+    if not (np.isfinite(lean) and lean >= 0):
+        raise ValueError(f"lean must be a number of panels >= 0, not {lean!r}")
+    panel = (xe - xs) / panels
+    # twice the least reach the node moves accept for an inclined member, at least
+    gap = max(LEAN_GAP * panel, 2 * MIN_REACH * scales(problem)[0])
+    start = max(LEAN_START * panel, 2 * gap)
+    for j, (xi, zi) in enumerate(zip(x[1:], cable_z[1:]), start=1):
+        deck = b.node(xi, zd)
+        if lean and j < panels:     # the mirror-line hanger stays vertical
+            node = b.node(xi - start, zi)
+            b.member(node, deck, "tension", "hanger")
+            reach = min(lean * panel, xi - xs - gap)   # not past the tower line
+            b.parameter(f"hanger lean {j}", start - reach, start - gap, {(node, 0): 1.0})
+        else:
+            node = b.node(xi, zi)
+            b.member(deck, node, "tension", "hanger")
         cable.append(node)
-        b.member(b.node(xi, zd), node, "tension", "hanger")
     b.chain(cable, "tension", "cable")
+    if not 0 <= legs < panels:
+        raise ValueError(f"legs must be a whole number from 0 to {panels - 1}, not {legs!r}")
+    if legs:
+        b.member(base, cable[legs], "compression", "tower")
     b.deck()
     if shape != "free":
         if sag_bounds is not None:
