@@ -27,13 +27,12 @@ an equal-strength cable or arch carries its own weight (:func:`self_weight_sag`)
 from __future__ import annotations
 
 import dataclasses
-import math
 from typing import Mapping
 
 import numpy as np
 
 from bridgeopt.model.bridge import BridgeScenario
-from bridgeopt.errors import InputError, SolveError
+from bridgeopt.errors import InputError
 from bridgeopt.solver.frame import Frame
 from bridgeopt.geometry.optimize import NodeMoves
 from bridgeopt.model.problem import Problem
@@ -42,12 +41,14 @@ from bridgeopt.forms.backspan import with_back_spans
 from bridgeopt.forms.builder import available_heights, deck_level, funicular_heights
 from bridgeopt.forms.cable_stayed import cable_stayed_frame
 from bridgeopt.forms.forked import forked_frame, forked_start
+from bridgeopt.forms.selfweight import (FREE_MARGIN, check_self_weight, self_weight_sag,
+                                        single_element_reach)
 from bridgeopt.forms.specs import ANCHOR_ZONE, ArchForm, CableStayedForm, FormSpec, SuspensionForm
 from bridgeopt.forms.suspension import suspension_frame
 
 __all__ = ["form_problem", "form_crossing", "build_form", "CLEARANCE", "START_SPAN_TO_HEIGHT",
            "START_SAG_RATIO", "START_RISE_RATIO", "LEAST_RATIO", "self_weight_sag",
-           "single_element_reach"]
+           "single_element_reach"]  # the last two from forms/selfweight.py, as before
 
 #: Least clearance between deck and cable or crown, as a part of the available height. [-]
 CLEARANCE = 0.01
@@ -131,93 +132,6 @@ def form_problem(bridge: BridgeScenario, spec: FormSpec) -> Problem:
                          f"for a single-span {spec.type} form (the back stays or the main "
                          "cable's back span need the anchor points at the end of the back span)")
     return form_crossing(bridge, spec).to_problem(piers=piers)
-
-
-def self_weight_sag(problem: Problem, sense: str, span: float) -> float:
-    """Least sag (or rise) of an equal-strength cable (or arch) over ``span``. [m]
-
-    Exact statics of the equal-strength element (area proportional to its
-    force, so its weight per unit length is k T, k = rho g / sigma): with
-    horizontal force H and a deck load w per unit length, H z'' = w + k H
-    (1 + z'^2).  As H grows the shape tends to z'' = k (1 + z'^2), z' = tan(k x)
-    from the lowest point, z = ln(sec(k x))/k: a sag of ln(sec(k L/2))/k, the
-    least with which the element carries its own weight; any deck load needs
-    more.  It is finite only for k L/2 < pi/2, i.e. a single such element spans
-    less than pi*sigma/(rho*g) (a structure of several members can span more).
-    The parabolic estimate k L^2/8 (common practice statics) is a few per cent
-    lower (677 m against 714 m for steel at 5 km).
-
-    Parameters
-    ----------
-    problem : Problem
-        Gives the self-weight parameter k = rho g / sigma of its materials.
-    sense : {"tension", "compression"}
-        A cable (tension) or an arch (compression).
-    span : float
-        Span the cable or arch crosses. [m]
-
-    Returns
-    -------
-    float
-        Least sag (cable) or rise (arch), ln(sec(k L/2))/k; 0 without
-        self-weight, inf when k L/2 >= pi/2. [m]
-    """
-    k = problem.k(sense)
-    if k <= 0:
-        return 0.0
-    t = 0.5 * k * span
-    return -math.log(math.cos(t)) / k if t < 0.5 * math.pi else math.inf
-
-
-def single_element_reach(problem: Problem, sense: str) -> float:
-    """pi*sigma/(rho*g): the longest span of one equal-strength cable or arch. [m]
-
-    Parameters
-    ----------
-    problem : Problem
-        Gives k = rho g / sigma of its materials.
-    sense : {"tension", "compression"}
-        A cable (tension) or an arch (compression).
-
-    Returns
-    -------
-    float
-        pi / k (inf without self-weight).  A structure of several members is not
-        bound by it. [m]
-    """
-    k = problem.k(sense)
-    return math.pi / k if k > 0 else math.inf
-
-
-#: A free sag or rise keeps this factor above the least one that carries its own weight, so
-#: that the search starts from an element that can hang (or stand) at all. [-]
-FREE_MARGIN = 1.02
-
-
-def _check_self_weight(value: float, need: float, span: float, what: str, key: str,
-                       reach: float = math.inf, margin: float = 1.0) -> None:
-    """SolveError "span-limit" when ``what`` ("a cable sag", "an arch rise") is too small.
-
-    ``need`` is the exact least value; ``value`` must exceed ``margin * need``.
-    """
-    if value > margin * need:
-        return
-    if need <= 0:
-        raise SolveError("span-limit", f"{what} of {value:.6g} m is too small")
-    element = "cable" if "sag" in what else "arch"
-    kept = (f"; a free {what.split()[-1]} is kept {margin - 1:.0%} above it, at "
-            f"{margin * need:.6g} m" if margin > 1 else "")
-    least = (f"more than ln(sec(k L/2))/k = {need:.6g} m (k = rho*g/sigma){kept}"
-             if math.isfinite(need)
-             else "an impossible sag: the span is beyond the reach of one equal-strength "
-                  f"{element}")
-    raise SolveError("span-limit",
-                     f"{what} of {value:.6g} m cannot carry its own weight and the deck over a "
-                     f"{span:.6g} m span: an equal-strength {element} needs {least}, and no "
-                     f"single equal-strength {element} spans more than pi*sigma/(rho*g) = "
-                     f"{reach:.6g} m (a structure of several members can); raise the "
-                     f"{what.split()[-1]} ({key}), shorten the span or use a stronger, lighter "
-                     "material")
 
 
 def _stays(bridge: BridgeScenario, reach: float) -> int:
@@ -348,12 +262,12 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                              f"above the deck under towers at most {top:.6g} m high)")
         need = self_weight_sag(problem, "tension", span)
         if spec.sag_ratio is not None:
-            _check_self_weight(sag, need, span, "a cable sag", "form.sag_ratio",
+            check_self_weight(sag, need, span, "a cable sag", "form.sag_ratio",
                                single_element_reach(problem, "tension"))
         else:
             top = rise if spec.tower_height is None else tower
             low = max(LEAST_RATIO * 0.5 * span, FREE_MARGIN * need)
-            _check_self_weight(top - least, need, span, "a cable sag", "bridge.rise",
+            check_self_weight(top - least, need, span, "a cable sag", "bridge.rise",
                                single_element_reach(problem, "tension"), FREE_MARGIN)
             sag, sag_bounds = _free(start.get("sag", max(START_SAG_RATIO * span, 1.5 * need)),
                                     low, top - least, "bridge.rise", bridge.rise, "a cable sag")
@@ -405,11 +319,11 @@ def build_form(bridge: BridgeScenario, spec: FormSpec, problem: Problem | None =
                 raise InputError("form.rise_ratio", spec.rise_ratio,
                                  f"<= {room / span:.6g} (the arch must fit within "
                                  f"{field} = {value:g} m)")
-            _check_self_weight(f, need, span, "an arch rise", "form.rise_ratio",
+            check_self_weight(f, need, span, "an arch rise", "form.rise_ratio",
                                single_element_reach(problem, "compression"))
         else:
             low = max(LEAST_RATIO * 0.5 * span, FREE_MARGIN * need)
-            _check_self_weight(room, need, span, "an arch rise", field,
+            check_self_weight(room, need, span, "an arch rise", field,
                                single_element_reach(problem, "compression"), FREE_MARGIN)
             f, rise_bounds = _free(start.get("rise", max(START_RISE_RATIO * span, 1.5 * need)),
                                    low, room, field, value, "an arch")
