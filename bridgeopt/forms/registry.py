@@ -24,6 +24,7 @@ from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
 
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "form_solver",
+           "V_TOWERS", "V_TOWER_REACH", "solve_v_towers",
            "register_form", "unregister_form", "available_forms"]
 
 #: Name of the reference optimum in every study table (not a form name).
@@ -41,8 +42,15 @@ _PACKAGE_FORMS = {
     "arch": ("arch", {}),
 }
 
+#: Study name of the suspension form with V-shaped towers (:func:`solve_v_towers`).
+V_TOWERS = "suspension, V-towers"
+#: Where a V-shaped tower's inclined leg meets the cable, as a part of the half span's
+#: hangers counted from the tower: 4 of 15 was the lightest at 1, 2.5 and 5 km (30 divisions,
+#: docs/benchmarks.md, "Suspension: inclined hangers and V-shaped towers"). [-]
+V_TOWER_REACH = 4.0 / 15.0
+
 #: Forms the workbook offers (in its pickers even when a name is unregistered).
-KNOWN_FORMS = tuple(_PACKAGE_FORMS)
+KNOWN_FORMS = (*_PACKAGE_FORMS, V_TOWERS)
 
 
 def form_solver(form_type: str, *, strict: bool = False, **fixed) -> FormSolver:
@@ -84,9 +92,41 @@ def form_solver(form_type: str, *, strict: bool = False, **fixed) -> FormSolver:
     return solve
 
 
+def solve_v_towers(bridge: BridgeScenario, options: Mapping) -> Design:
+    """The suspension form with V-shaped towers, its legs at :data:`V_TOWER_REACH` of the hangers.
+
+    For a study: ``options`` keys the suspension form does not have are ignored, as
+    with :func:`form_solver`; the leg meets the cable at the hanger nearest
+    ``V_TOWER_REACH`` of the half span's hangers from the tower (at least the first,
+    short of mid-span), so that it sits at the same place on any grid.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing (span [m], rise [m], grid divisions ...).
+    options : mapping
+        The study's choices (``spacing`` [m] and the other suspension keys are used).
+
+    Returns
+    -------
+    Design
+        The sized, geometry-optimized form.
+    """
+    spacing = options.get("spacing")
+    hangers = (bridge.divisions // 2 if spacing is None
+               else max(1, round(0.5 * bridge.span / float(spacing))))
+    legs = max(1, min(hangers - 1, round(V_TOWER_REACH * hangers)))
+    if hangers < 2:
+        raise InputError("bridge.divisions", bridge.divisions,
+                         "at least 4 for V-shaped towers (a leg needs a hanger short of mid-span)")
+    return form_solver("suspension", tower_legs=legs)(bridge, options)
+
+
 #: Registered form solvers, by name: the package's forms, then any registered.
 FORM_SOLVERS: dict[str, FormSolver] = {
-    name: form_solver(form_type, **fixed) for name, (form_type, fixed) in _PACKAGE_FORMS.items()}
+    **{name: form_solver(form_type, **fixed) for name, (form_type, fixed)
+       in _PACKAGE_FORMS.items()},
+    V_TOWERS: solve_v_towers}
 
 
 def register_form(name: str, solver: FormSolver) -> FormSolver:

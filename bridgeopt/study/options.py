@@ -44,7 +44,7 @@ __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "
            "unregister_form", "available_forms", "solve_reference", "solve_option",
            "solve_options", "compare", "quantities", "STATUSES", "comparison_table",
            "comparison_rows", "inputs_table", "bridge_from_file", "crossing_name",
-           "series_name", "reference_on", "options_by_series"]
+           "series_name", "reference_on", "options_by_series", "bounded", "BELOW_REFERENCE_TOL"]
 
 
 @dataclass(frozen=True)
@@ -163,7 +163,54 @@ def solve_options(bridge: BridgeScenario, forms: Iterable[str] = (),
         Each option once, :data:`REFERENCE` first (see :func:`solve_option`).
     """
     names = [REFERENCE] + [f for f in forms if f != REFERENCE]
-    return {n: solve_option(bridge, n, options) for n in dict.fromkeys(names)}
+    results = {n: solve_option(bridge, n, options) for n in dict.fromkeys(names)}
+    ref = results[REFERENCE].design
+    return {n: bounded(o, ref) if n != REFERENCE else o for n, o in results.items()}
+
+
+#: A form lighter than its reference by more than this part is refused (not drawn). [-]
+BELOW_REFERENCE_TOL = 1e-6
+
+
+def bounded(option: Option, reference: Design | None) -> Option:
+    """``option``, or a failed one when its form is lighter than the reference it is set against.
+
+    The reference optimum bounds every structure on the same grid nodes (W.S. Dorn,
+    R.E. Gomory, H.J. Greenberg 1964, J. de Mecanique 3:25-52); a form with nodes
+    between the grid's (free anchors, leg heads, inclined hangers) can fall under it on
+    a coarse grid, where the grid reference is no bound.  Such a result is not shown
+    as a design: the option fails with a message that says so and asks for a finer grid.
+
+    Parameters
+    ----------
+    option : Option
+        A solved form.
+    reference : Design or None
+        The plain reference of the scenario; a form on its own crossing (piers) is
+        checked against that crossing's reference instead (:func:`reference_on`).
+
+    Returns
+    -------
+    Option
+        ``option`` when it is not below its reference (or either is missing), else
+        status ``"failed"`` without a design.
+    """
+    d = option.design
+    if d is None or reference is None:
+        return option
+    own = reference
+    if crossing_name(getattr(d, "problem", None), reference.problem):
+        try:
+            own = reference_on(d.problem)
+        except (SolveError, InputError):
+            return option
+    if d.volume >= own.volume * (1 - BELOW_REFERENCE_TOL):
+        return option
+    return Option(option.name, "failed", None,
+                  f"{option.name}: {d.volume:.6g} m3 is below the reference optimum it is set "
+                  f"against ({own.volume:.6g} m3): the grid is too coarse to bound a form whose "
+                  "nodes fall between its nodes; use more grid divisions (bridge.divisions)",
+                  option.seconds)
 
 
 def comparison_table(bridge: BridgeScenario, results: Mapping[str, Option]):

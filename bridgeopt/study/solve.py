@@ -167,6 +167,14 @@ def solve_scenario(scenario: Scenario, *, geometry_optimization: bool | None = N
                 reference = form_reference(scenario)
             form = solve_form(scenario.bridge, scenario.form, reference=reference,
                               member_adding=opts.member_adding)
+            if form.volume < form.reference_volume * (1 - 1e-6):
+                # the reference bounds every structure on its grid nodes; a form with nodes
+                # between them can fall below it on a coarse grid: no finding, a refusal
+                raise SolveError("below-reference",
+                                 f"the {scenario.form.type} form ({form.volume:.6g} m3) is "
+                                 f"below its reference optimum ({form.reference_volume:.6g} "
+                                 "m3): the grid is too coarse to bound a form whose nodes fall "
+                                 "between its nodes; use more bridge.divisions")
             return Solved(scenario, form.design, form)
         design = optimize_layout(scenario.problem, member_adding=opts.member_adding,
                                  batch=opts.batch)

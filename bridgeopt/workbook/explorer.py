@@ -156,7 +156,8 @@ class Explorer:
             self.message.value = message_html(f"Solving {bridge.span:,.0f} m ...", "note")
         ref = self._solve(bridge, study.REFERENCE, pylons)
         results = {study.REFERENCE: ref}
-        results[form] = self._solve(bridge, form, pylons)
+        # a form below the reference it is set against is refused, never drawn
+        results[form] = study.bounded(self._solve(bridge, form, pylons), ref.design)
         if ref.status != "optimal":
             self.error = ref.message
             self.message.value = message_html(ref.message)
