@@ -115,10 +115,10 @@ def solve_v_towers(bridge: BridgeScenario, options: Mapping) -> Design:
     spacing = options.get("spacing")
     hangers = (bridge.divisions // 2 if spacing is None
                else max(1, round(0.5 * bridge.span / float(spacing))))
-    legs = max(1, min(hangers - 1, round(V_TOWER_REACH * hangers)))
     if hangers < 2:
         raise InputError("bridge.divisions", bridge.divisions,
                          "at least 4 for V-shaped towers (a leg needs a hanger short of mid-span)")
+    legs = max(1, min(hangers - 1, round(V_TOWER_REACH * hangers)))
     return form_solver("suspension", tower_legs=legs)(bridge, options)
 
 
