@@ -215,7 +215,8 @@ def _all_groups(pair: np.ndarray, n_groups: int) -> tuple[np.ndarray, np.ndarray
 
 def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = True,
                 batch: int | None = None, gap_tol: float | None = None,
-                max_rounds: int = 500, seed: np.ndarray | None = None) -> AddingResult:
+                max_rounds: int = 500, seed: np.ndarray | None = None,
+                start_reach: int = 1) -> AddingResult:
     """Run member adding (module docstring) on ``model``.
 
     Parameters
@@ -236,7 +237,9 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     seed : (s,) int array, optional
         Pairs to put in the first LP, in every group (e.g. predicted by a
         coarser grid's duals). [-]
-
+    start_reach : int
+        Lattice reach of the pairs put in the first LP besides ``seed`` (0: the seed
+        alone; should that LP have no optimum, the reach goes to 1 and doubles). [-]
 
     Returns
     -------
@@ -246,7 +249,7 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     t0 = time.perf_counter()
     if member_adding and seed is not None:
         model.add(*_all_groups(seed, n_groups))
-    level = 1 if member_adding else np.inf
+    level = start_reach if member_adding else np.inf
     rounds = 0
     while True:
         start = np.nonzero(reach <= level)[0]
@@ -257,7 +260,7 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
             break
         # the start cannot carry the loads (infeasible), or only with forces so large that
         # HiGHS gives up (status unknown): widen it
-        level *= 2
+        level = max(1, 2 * level)
     gap = 0.0
     while status == "optimal" and member_adding and rounds < max_rounds:
         found = model.price()
