@@ -97,16 +97,19 @@ __all__ = ["CaseDesign", "optimize_cases", "single_case_reference", "MAX_FULL_CO
 MAX_FULL_COLUMNS = 400_000
 #: Safety stop on member-adding rounds.
 MAX_ROUNDS = 200
-#: Member adding solves each round by the interior point method without
-#: crossover (seen 20 times faster than simplex on these degenerate LPs), adds
-#: the members that violate the dual check, and stops once the proven relative
-#: optimality gap 1 - 1/max(work/cost) is below GAP_TOL (the dual check is
-#: homogeneous in the duals: dividing them by the largest ratio makes every
-#: column dual feasible and bounds the optimum from below).  The last LP is then
-#: solved again with crossover, to a vertex, for clean member forces.
+#: Member adding (one live HiGHS instance, :class:`~bridgeopt.solver.casemodel.CaseModel`)
+#: solves its first rounds by the interior point method without crossover (cold
+#: dual simplex is much slower on these degenerate LPs), crosses over to a vertex
+#: once a round adds few members and re-solves by warm dual simplex from there,
+#: adds the members that violate the dual check, and stops once the proven
+#: relative optimality gap 1 - 1/max(work/cost) is below GAP_TOL (the dual check
+#: is homogeneous in the duals: dividing them by the largest ratio makes every
+#: column dual feasible and bounds the optimum from below).  Should the rounds end
+#: in the interior, the last solution is crossed over to a vertex for clean
+#: member forces.
 GAP_TOL = 1e-6
-#: Solve every round by interior point without crossover (cold, as before the live
-#: model) instead of ipm + crossover first and warm dual simplex after.
+#: First rounds by interior point without crossover; False: every round by dual
+#: simplex (the first LP by interior point with crossover, to a basis).
 IPM_ROUNDS = True
 #: Interior point rounds go over to warm dual simplex once few members are added
 #: (:data:`bridgeopt.solver.casemodel.SWITCH`).
@@ -269,12 +272,19 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
                          start_reach=START_REACH)
     status, rounds, gap = result.status, result.rounds, result.gap
     if status == "optimal" and not model.vertex:
+        before = model.out["objective"] * (1.0 - gap)   # proven lower bound of the rounds
         status = model.to_vertex()   # crossover from the interior point: clean forces
+        if status == "optimal" and member_adding:
+            # the vertex duals give their own bound: the proven gap is the better of the two
+            value, found = model.out["objective"], model.price()
+            bound = value if found is None else value / float(found[2].max())
+            gap = max(0.0, 1.0 - max(before, bound) / value)
     raise_for_status(status, "no structure in the ground structure can carry every load case "
                      "to the supports")
-    out = model.out
-    return case_design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds,
-                   time.perf_counter() - t0, int(model.in_lp.sum()), gap)
+    design = case_design(study, grid, f, data, model.out, ref_len, ref_force, ref_sigma,
+                         rounds, time.perf_counter() - t0, int(model.in_lp.sum()), gap)
+    design.stats.update(dropped=model.dropped, vertex=model.vertex)
+    return design
 
 
 def _envelope(study: CaseStudy) -> np.ndarray:
