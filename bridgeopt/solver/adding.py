@@ -5,8 +5,9 @@ pair in one or more groups (senses, or element groups), by the same rounds
 (Gilbert & Tyas 2003):
 
 1. **seed** the LP with the pairs of lattice reach 1 (nearest neighbours), plus
-   any pairs a guess of the duals predicts to be active; if that LP has no
-   optimum, double the reach until it has (or every pair is in);
+   any pairs a guess of the duals predicts to be active (or the seed alone,
+   ``start_reach=0``); if that LP has no optimum, double the reach until it has
+   (or every pair is in);
 2. **solve** the LP over the members in it;
 3. **price** every candidate left out against the LP's duals (the dual check:
    its virtual work exceeds its cost by more than a tolerance);
@@ -19,7 +20,7 @@ pair in one or more groups (senses, or element groups), by the same rounds
    after a safety number of rounds.
 
 A model may also take out members that stayed at zero force (:class:`Pruner`,
-used by the single-case LP between dual simplex solves): they are candidates
+used by the single- and the multi-case LP between dual simplex solves): they are candidates
 again, so step 3 covers them and the stopping rule and the gap stay exact.
 
 What differs between the two LPs lives in their models (the

@@ -45,7 +45,10 @@ whose sign allows it), so the pair **violates** the dual check when::
 (for a tension-only group the max is max(sigma_t e_k, 0), for a
 compression-only group max(-sigma_c e_k, 0)).  Members are added, most
 violated first by the ratio of the two sides, until none violates by more than
-a relative 1e-7; the result is then the full ground-structure optimum.
+a relative 1e-7; the result is then the full ground-structure optimum.  The
+LP is held in one live HiGHS instance (:mod:`bridgeopt.solver.casemodel`), its
+first members being the nearest-neighbour pairs and the pairs of each case's
+single-case optimum.
 
 Everything is dimensionless as in :mod:`bridgeopt.solver.layout`: lengths over the
 reference length L, forces over the largest case's total load P, stresses over
