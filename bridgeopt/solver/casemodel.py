@@ -39,7 +39,7 @@ from bridgeopt.solver.elements import bar_factors
 from bridgeopt.solver.highs import (INF, add_columns, model_status, new_highs, node_rows,
                                     triplet_columns, unit_columns)
 
-__all__ = ["CaseModel", "ZERO_AREA"]
+__all__ = ["CaseModel", "geometry", "ZERO_AREA", "WARM_BASIS", "SWITCH"]
 
 #: A member with an area at most this fraction of the largest is "at zero" for the
 #: removal of members (:class:`~bridgeopt.solver.adding.Pruner`). [-]
@@ -84,9 +84,12 @@ class CaseModel:
     prune : bool
         Take out members that stayed at zero area (:class:`~bridgeopt.solver.adding.Pruner`).
     ipm : bool
-        Solve every LP by interior point without crossover (no warm start, no
-        removal); otherwise the first by interior point with crossover and the
-        rest by warm dual simplex.
+        Solve the rounds by interior point without crossover (no warm start, no
+        removal) until ``switch`` says otherwise; else the first LP by interior
+        point with crossover and the rest by warm dual simplex.
+    switch : bool
+        With ``ipm``, cross over to a vertex and go on by warm dual simplex (with
+        removal) once a round adds at most :data:`SWITCH` of the members.
     """
 
     def __init__(self, data, *, price: Callable, prune: bool = True, ipm: bool = False,
