@@ -36,10 +36,17 @@ import numpy as np
 
 from bridgeopt.solver.adding import Pruner
 from bridgeopt.solver.elements import bar_factors
-from bridgeopt.solver.highs import (INF, add_columns, model_status, new_highs, node_rows,
-                                    triplet_columns, unit_columns)
+from bridgeopt.solver.highs import (
+    INF,
+    add_columns,
+    model_status,
+    new_highs,
+    node_rows,
+    triplet_columns,
+    unit_columns,
+)
 
-__all__ = ["CaseModel", "geometry", "ZERO_AREA", "WARM_BASIS", "SWITCH"]
+__all__ = ["SWITCH", "WARM_BASIS", "ZERO_AREA", "CaseModel", "geometry"]
 
 #: A member with an area at most this fraction of the largest is "at zero" for the
 #: removal of members (:class:`~bridgeopt.solver.adding.Pruner`). [-]
