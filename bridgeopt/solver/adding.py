@@ -5,8 +5,9 @@ pair in one or more groups (senses, or element groups), by the same rounds
 (Gilbert & Tyas 2003):
 
 1. **seed** the LP with the pairs of lattice reach 1 (nearest neighbours), plus
-   any pairs a guess of the duals predicts to be active; if that LP has no
-   optimum, double the reach until it has (or every pair is in);
+   any pairs a guess of the duals predicts to be active (or the seed alone,
+   ``start_reach=0``); if that LP has no optimum, double the reach until it has
+   (or every pair is in);
 2. **solve** the LP over the members in it;
 3. **price** every candidate left out against the LP's duals (the dual check:
    its virtual work exceeds its cost by more than a tolerance);
@@ -19,7 +20,7 @@ pair in one or more groups (senses, or element groups), by the same rounds
    after a safety number of rounds.
 
 A model may also take out members that stayed at zero force (:class:`Pruner`,
-used by the single-case LP between dual simplex solves): they are candidates
+used by the single- and the multi-case LP between dual simplex solves): they are candidates
 again, so step 3 covers them and the stopping rule and the gap stay exact.
 
 What differs between the two LPs lives in their models (the
@@ -215,7 +216,8 @@ def _all_groups(pair: np.ndarray, n_groups: int) -> tuple[np.ndarray, np.ndarray
 
 def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = True,
                 batch: int | None = None, gap_tol: float | None = None,
-                max_rounds: int = 500, seed: np.ndarray | None = None) -> AddingResult:
+                max_rounds: int = 500, seed: np.ndarray | None = None,
+                start_reach: int = 1) -> AddingResult:
     """Run member adding (module docstring) on ``model``.
 
     Parameters
@@ -236,7 +238,9 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     seed : (s,) int array, optional
         Pairs to put in the first LP, in every group (e.g. predicted by a
         coarser grid's duals). [-]
-
+    start_reach : int
+        Lattice reach of the pairs put in the first LP besides ``seed`` (0: the seed
+        alone; should that LP have no optimum, the reach goes to 1 and doubles). [-]
 
     Returns
     -------
@@ -246,7 +250,7 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     t0 = time.perf_counter()
     if member_adding and seed is not None:
         model.add(*_all_groups(seed, n_groups))
-    level = 1 if member_adding else np.inf
+    level = start_reach if member_adding else np.inf
     rounds = 0
     while True:
         start = np.nonzero(reach <= level)[0]
@@ -257,7 +261,7 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
             break
         # the start cannot carry the loads (infeasible), or only with forces so large that
         # HiGHS gives up (status unknown): widen it
-        level *= 2
+        level = max(1, 2 * level)
     gap = 0.0
     while status == "optimal" and member_adding and rounds < max_rounds:
         found = model.price()

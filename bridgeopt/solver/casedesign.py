@@ -64,7 +64,8 @@ class CaseDesign:
         Names of the load cases, in order.
     stats : dict
         ``rounds``, ``seconds``, ``columns``, ``candidates``, ``grid_nodes``,
-        ``lp_objective``, ``gap``, ``equilibrium_error``.
+        ``lp_objective``, ``gap``, ``equilibrium_error``, ``dropped`` (members taken out of
+        the LP at zero area during member adding) and ``vertex`` (a basic solution).
     copies : float
         Number of copies of the model in the reported structure. [-]
     study : CaseStudy

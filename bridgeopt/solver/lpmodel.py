@@ -46,8 +46,8 @@ class LayoutModel:
     Columns are appended to the live instance, so each round's dual simplex
     starts from the previous basis (a warm start); columns at zero force for
     :data:`~bridgeopt.solver.adding.DROP_AFTER` solves are deleted from it
-    (:class:`~bridgeopt.solver.adding.Pruner`).  The multi-case LP instead
-    rebuilds its model each round, see :mod:`bridgeopt.solver.multicase`.
+    (:class:`~bridgeopt.solver.adding.Pruner`).  The multi-case LP has its own
+    live model, :class:`bridgeopt.solver.casemodel.CaseModel`.
 
     Parameters
     ----------

@@ -45,7 +45,10 @@ whose sign allows it), so the pair **violates** the dual check when::
 (for a tension-only group the max is max(sigma_t e_k, 0), for a
 compression-only group max(-sigma_c e_k, 0)).  Members are added, most
 violated first by the ratio of the two sides, until none violates by more than
-a relative 1e-7; the result is then the full ground-structure optimum.
+a relative 1e-7; the result is then the full ground-structure optimum.  The
+LP is held in one live HiGHS instance (:mod:`bridgeopt.solver.casemodel`), its
+first members being the nearest-neighbour pairs and the pairs of each case's
+single-case optimum.
 
 Everything is dimensionless as in :mod:`bridgeopt.solver.layout`: lengths over the
 reference length L, forces over the largest case's total load P, stresses over
@@ -83,10 +86,9 @@ from bridgeopt.model.materials import GRAVITY
 from bridgeopt.solver.adding import add_members, check_options
 from bridgeopt.solver.budget import check_fits
 from bridgeopt.solver.casedesign import CaseDesign, case_design
+from bridgeopt.solver.casemodel import CaseModel, geometry
 from bridgeopt.solver.ground import build_grid, candidate_pairs
-from bridgeopt.solver.elements import bar_factors
-from bridgeopt.solver.highs import (INF, node_rows, raise_for_status, solve_columns,
-                                    triplet_columns)
+from bridgeopt.solver.highs import raise_for_status
 from bridgeopt.solver.lumping import nodal_loads, restrained_rows
 from bridgeopt.solver.lp import PRICE_CHUNK, PRICE_TOL
 
@@ -98,14 +100,30 @@ __all__ = ["CaseDesign", "optimize_cases", "single_case_reference", "MAX_FULL_CO
 MAX_FULL_COLUMNS = 400_000
 #: Safety stop on member-adding rounds.
 MAX_ROUNDS = 200
-#: Member adding solves each round by the interior point method without
-#: crossover (seen 20 times faster than simplex on these degenerate LPs), adds
-#: the members that violate the dual check, and stops once the proven relative
-#: optimality gap 1 - 1/max(work/cost) is below GAP_TOL (the dual check is
-#: homogeneous in the duals: dividing them by the largest ratio makes every
-#: column dual feasible and bounds the optimum from below).  The last LP is then
-#: solved again with crossover, to a vertex, for clean member forces.
+#: Member adding (one live HiGHS instance, :class:`~bridgeopt.solver.casemodel.CaseModel`)
+#: solves its first rounds by the interior point method without crossover (cold
+#: dual simplex is much slower on these degenerate LPs), crosses over to a vertex
+#: once a round adds few members and re-solves by warm dual simplex from there,
+#: adds the members that violate the dual check, and stops once the proven
+#: relative optimality gap 1 - 1/max(work/cost) is below GAP_TOL (the dual check
+#: is homogeneous in the duals: dividing them by the largest ratio makes every
+#: column dual feasible and bounds the optimum from below).  Should the rounds end
+#: in the interior, the last solution is crossed over to a vertex for clean
+#: member forces.
 GAP_TOL = 1e-6
+#: First rounds by interior point without crossover; False: every round by dual
+#: simplex (the first LP by interior point with crossover, to a basis).
+IPM_ROUNDS = True
+#: Interior point rounds go over to warm dual simplex once few members are added
+#: (:data:`bridgeopt.solver.casemodel.SWITCH`).
+SWITCH = True
+#: Take members that stayed at zero area out of the LP (:class:`~bridgeopt.solver.adding.Pruner`).
+PRUNE = True
+#: Start member adding from the pairs of the single-case optima of the cases
+#: (their envelope) instead of the nearest-neighbour pairs.
+ENVELOPE_SEED = True
+#: Lattice reach of the pairs in the first LP besides the seed.
+START_REACH = 1
 
 
 @dataclass(frozen=True)
@@ -139,102 +157,6 @@ def _groups(study: CaseStudy, sigma_ref: float, ref_len: float) -> tuple:
              kk(p.density("compression")), costs.compression / costs.tension))
 
 
-def _geometry(data: _Data, pair: np.ndarray):
-    """Length and unit vector (P to Q) of the pairs."""
-    d = data.xz[data.b[pair]] - data.xz[data.a[pair]]
-    length = np.hypot(d[:, 0], d[:, 1])
-    return length, d / length[:, None]
-
-
-class _Model:
-    """The LP over a set of (pair, group) members, for :func:`~bridgeopt.solver.adding.add_members`.
-
-    Unlike the single-case LP (:mod:`bridgeopt.solver.lp`), which appends columns
-    to a live HiGHS instance so that dual simplex restarts from the last basis,
-    this model is rebuilt from scratch each round: a member brings rows (its 2K
-    stress rows) as well as columns, and the interior point method used here has
-    no warm start to keep.
-    """
-
-    def __init__(self, data: _Data, exact: bool):
-        self.data = data
-        self.exact = exact
-        self.out: dict | None = None
-        self.K = data.loads.shape[0]
-        self.n2 = data.loads.shape[1]
-        self.in_lp = np.zeros((len(data.a), len(data.groups)), dtype=bool)
-
-    def add(self, pair: np.ndarray, group: np.ndarray) -> None:
-        self.in_lp[pair, group] = True
-
-    def solve(self, exact: bool | None = None) -> str:
-        """Solve the LP over the members in it; the optimum goes to ``self.out``.
-
-        Interior point, with crossover to a vertex when ``exact`` (default
-        ``self.exact``).
-        """
-        exact = self.exact if exact is None else exact
-        d, K, n2 = self.data, self.K, self.n2
-        pair, grp = np.nonzero(self.in_lp)
-        m = len(pair)
-        length, unit = _geometry(d, pair)
-        g = np.array([d.groups[i][1:] for i in range(len(d.groups))])  # (G, 4)
-        st, sc, kw, price = (g[grp, j] for j in range(4))
-        nfix = len(d.fixed)
-        # columns: [a (m)] [q case 0 (m)] ... [q case K-1 (m)] [r case 0 (nfix)] ...
-        n_eq = K * n2
-        # rows: [eq case 0 (n2)] ... [t rows case k (m)] ... [c rows case k (m)]
-        rows_t = n_eq + np.arange(K)[:, None] * m + np.arange(m)[None, :]
-        rows_c = n_eq + K * m + np.arange(K)[:, None] * m + np.arange(m)[None, :]
-        ea, eb = d.a[pair], d.b[pair]
-        ri, ci, vi = [], [], []
-        col = np.arange(m)
-        half_w = -0.5 * kw * length
-        # force columns: straight bars of free axial force, plus their stress rows
-        bar_rows, bar = node_rows(ea, eb), bar_factors(unit)
-        for k in range(K):
-            off = k * n2
-            # a columns: lumped weight in z rows, stress rows
-            ri += [off + 2 * ea + 1, off + 2 * eb + 1, rows_t[k], rows_c[k]]
-            ci += [col, col, col, col]
-            vi += [half_w, half_w, -st, sc]
-            qc = m * (1 + k) + col
-            ri += [*(off + bar_rows).T, rows_t[k], rows_c[k]]
-            ci += [qc] * 6
-            vi += [*bar.T, np.ones(m), np.ones(m)]
-            rc = m * (1 + K) + k * nfix + np.arange(nfix)
-            ri.append(off + d.fixed)
-            ci.append(rc)
-            vi.append(np.ones(nfix))
-        n_col = m * (1 + K) + K * nfix
-        n_row = n_eq + 2 * K * m
-        columns = triplet_columns(
-            np.concatenate(ri), np.concatenate(ci), np.concatenate(vi), shape=(n_row, n_col),
-            cost=np.concatenate([price * length, np.zeros(n_col - m)]),
-            lower=np.concatenate([np.zeros(m)] + [np.where(sc == 0, 0.0, -INF)] * K
-                                 + [np.full(K * nfix, -INF)]),
-            upper=np.concatenate([np.full(m, INF)] + [np.where(st == 0, 0.0, INF)] * K
-                                 + [np.full(K * nfix, INF)]))
-        rhs = -d.loads.ravel()
-        res = solve_columns(columns, np.concatenate([rhs, np.full(K * m, -INF), np.zeros(K * m)]),
-                            np.concatenate([rhs, np.zeros(K * m), np.full(K * m, INF)]),
-                            ipm=True, crossover=exact)
-        self.out = None
-        if res.status != "optimal":
-            return res.status
-        x = res.x
-        self.out = {"pair": pair, "group": grp, "area": x[:m],
-                    "force": x[m:m * (1 + K)].reshape(K, m).T,
-                    "reactions": x[m * (1 + K):].reshape(K, nfix),
-                    "duals": res.row_dual[:n_eq].reshape(K, n2), "objective": res.objective,
-                    "length": length, "unit": unit}
-        return "optimal"
-
-    def price(self):
-        """Violating (pair, group, ratio) at the last solve's duals."""
-        return price_cases(self.data, self.in_lp, self.out["duals"])
-
-
 def price_cases(data: _Data, in_lp: np.ndarray, y: np.ndarray, tol: float = PRICE_TOL):
     """The multi-case dual check (module docstring): violating (pair, group, ratio), or None.
 
@@ -255,8 +177,8 @@ def price_cases(data: _Data, in_lp: np.ndarray, y: np.ndarray, tol: float = PRIC
     yx, yz = y[:, 0::2], y[:, 1::2]            # (K, n)
     for s0 in range(0, n_pairs, PRICE_CHUNK):
         pair = np.arange(s0, min(n_pairs, s0 + PRICE_CHUNK))
-        length, unit = _geometry(d, pair)
         a, b = d.a[pair], d.b[pair]
+        length, unit = geometry(d.xz, a, b)
         # e_k = y_k . b_m: (m, K)
         e = ((yx[:, a] - yx[:, b]) * unit[:, 0] + (yz[:, a] - yz[:, b]) * unit[:, 1]).T
         zsum = (yz[:, a] + yz[:, b]).T                 # (m, K)
@@ -343,19 +265,49 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
         if cols > MAX_FULL_COLUMNS:
             raise SolveError("too-large", f"the full ground structure has {cols} columns "
                              f"(> {MAX_FULL_COLUMNS}); use member adding or a coarser grid")
-    # member adding solves by the interior point method without crossover and stops at a
-    # proven gap; the full ground structure is solved to a vertex at once
-    model = _Model(data, exact=not member_adding)
+    # one live HiGHS instance: first LP by ipm with crossover, then warm dual simplex, members
+    # at zero area leave (CaseModel); member adding stops at a proven gap
+    model = CaseModel(data, price=price_cases, prune=member_adding and PRUNE,
+                      ipm=member_adding and IPM_ROUNDS, switch=SWITCH)
+    seed = _envelope(study) if member_adding and ENVELOPE_SEED else None
     result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
-                         gap_tol=GAP_TOL, max_rounds=MAX_ROUNDS)
+                         gap_tol=GAP_TOL, max_rounds=MAX_ROUNDS, seed=seed,
+                         start_reach=START_REACH)
     status, rounds, gap = result.status, result.rounds, result.gap
-    if status == "optimal" and not model.exact:
-        status = model.solve(exact=True)   # same members, solved to a vertex: clean forces
+    if status == "optimal" and not model.vertex:
+        before = model.out["objective"] * (1.0 - gap)   # proven lower bound of the rounds
+        status = model.to_vertex()   # crossover from the interior point: clean forces
+        if status == "optimal" and member_adding:
+            # the vertex duals give their own bound: the proven gap is the better of the two
+            value, found = model.out["objective"], model.price()
+            bound = value if found is None else value / float(found[2].max())
+            gap = max(0.0, 1.0 - max(before, bound) / value)
     raise_for_status(status, "no structure in the ground structure can carry every load case "
                      "to the supports")
-    out = model.out
-    return case_design(study, grid, f, data, out, ref_len, ref_force, ref_sigma, rounds,
-                   time.perf_counter() - t0, int(model.in_lp.sum()), gap)
+    design = case_design(study, grid, f, data, model.out, ref_len, ref_force, ref_sigma,
+                         rounds, time.perf_counter() - t0, int(model.in_lp.sum()), gap)
+    design.stats.update(dropped=model.dropped, vertex=model.vertex)
+    return design
+
+
+def _envelope(study: CaseStudy) -> np.ndarray:
+    """Pairs active in the single-case reference optimum of any case (first LP's members).
+
+    The cases alone are solved on the same grid and candidates
+    (:func:`~bridgeopt.solver.layout.solve_layout_lp`), so their pair indices are ours.
+    """
+    from bridgeopt.solver.layout import solve_layout_lp
+
+    pairs = []
+    for k in range(len(study.cases)):
+        loads, lines = study.case_loads(k)
+        try:
+            sol = solve_layout_lp(dataclasses.replace(study.problem, loads=loads,
+                                                      line_loads=lines))[3]
+        except SolveError:
+            continue        # the multi-case LP says why, or finds its own start
+        pairs.append(sol.pair)
+    return np.unique(np.concatenate(pairs)) if pairs else None
 
 
 def single_case_reference(study: CaseStudy, case: int | None = None):
