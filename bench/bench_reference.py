@@ -83,12 +83,8 @@ out = dict(divisions=n, method="full" if full else "member adding", seconds=dt,
            normalised=sc.normalised_volume(d.volume))
 largest = max((len(c[0].a) for c in calls), default=0)
 calls = [c for c in calls if len(c[0].a) == largest]
-mapped = d.stats["start"] == "multilevel"
-rows = 2 * len(calls[0][0].xz) if calls else 0
-used = "ipm" if rows > (lp.IPM_ROWS_MAPPED if mapped else lp.IPM_ROWS) else "simplex"
-if used == "ipm" and mapped:
-    used = "simplex"  # interior point rounds, then the vertex model's (dual simplex) rounds
-elif used == "ipm" and d.stats["vertex"]:
+used = "ipm" if calls and 2 * len(calls[0][0].xz) > lp.IPM_ROWS else "simplex"
+if used == "ipm" and d.stats["vertex"]:
     calls = calls[:-1]  # the last pricing checked the vertex re-solve's duals
 out["vertex"], out["dropped"] = d.stats["vertex"], d.stats["dropped"]
 out["start"] = d.stats["start"]

@@ -52,15 +52,11 @@ PREDICT_PER_NODE = 4
 #: dual simplex re-solves of these highly degenerate LPs were seen to take
 #: 100000+ iterations at 7442 rows.
 IPM_ROWS = 4000
-#: With a coarser grid's optimum mapped onto the grid (a first LP close to the optimum),
-#: LPs with more equality rows than this use the interior point method.
-IPM_ROWS_MAPPED = 4000
 #: With mapped seed columns, the first LP also holds the pairs of at most this reach.
 SEED_REACH = 1
-#: With a mapped start, interior point rounds turn to dual simplex once the objective fell
-#: by at most this fraction in a round: the next LP by interior point with crossover, the
-#: rest warm dual simplex to the exact optimum (None: interior point rounds throughout). [-]
-IPM_SWITCH = 1e-4
+#: With a coarser grid's members mapped onto the grid, interior-point-sized LPs take at
+#: most this many predicted pairs per node (smaller LPs, same rounds, docs/benchmarks.md).
+PREDICT_PER_NODE_IPM = 2
 #: With the interior point method (no exact vertex duals), member adding stops
 #: once the proven optimality gap is below this.
 IPM_GAP = 1e-5
@@ -332,17 +328,15 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     t0 = time.perf_counter()
     n_nodes = len(data.xz)
     mapped = member_adding and seed_columns is not None
-    ipm = 2 * n_nodes > (IPM_ROWS_MAPPED if mapped else IPM_ROWS)
+    ipm = 2 * n_nodes > IPM_ROWS
     # columns leave only between simplex solves: interior point rounds with removal
     # were measured to creep (40+ rounds of 3-8 s at 120 divisions, docs/benchmarks.md)
     model = LayoutModel(data, ipm=ipm, prune=member_adding and not ipm, columns=lp_columns,
                         price=price_candidates)
-    switch = ipm and mapped and IPM_SWITCH is not None
-    if switch:
-        model.switch = IPM_SWITCH
     seed, groups, reach = None, None, 1
     if member_adding and dual_guess is not None:
-        seed = predicted_pairs(data, dual_guess, int(PREDICT_PER_NODE * n_nodes))
+        per_node = PREDICT_PER_NODE_IPM if ipm and mapped else PREDICT_PER_NODE
+        seed = predicted_pairs(data, dual_guess, int(per_node * n_nodes))
     if mapped:
         pair, sense = seed_columns
         seed = np.zeros(0, dtype=np.int64) if seed is None else seed
@@ -354,14 +348,13 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     # simplex solves to the exact optimum; the interior point method (large LPs) stops
     # at a proven gap, as it has no exact vertex duals
     result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
-                         gap_tol=IPM_GAP if ipm and not switch else None,
-                         max_rounds=MAX_ROUNDS, seed=seed,
+                         gap_tol=IPM_GAP if ipm else None, max_rounds=MAX_ROUNDS, seed=seed,
                          seed_groups=groups, seed_reach=reach)
     raise_for_status(result.status, "no structure in the ground structure can carry the "
                      "loads to the supports")
     objective = float(model.h.getInfo().objective_function_value)
     gap = result.gap
-    if ipm and lpmodel.VERTEX and not model.vertex:
+    if ipm and lpmodel.VERTEX:
         model, objective, gap = vertex_solve(model, objective, gap)
     h = model.h
     sol = h.getSolution()
@@ -374,7 +367,7 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     return LPSolution(
         objective=objective,
         pair=pair[active], sense=sense[active], force=force[active],
-        reactions=x[:nfix].copy(), duals=model.duals(),
+        reactions=x[:nfix].copy(), duals=np.asarray(sol.row_dual).copy(),
         rounds=result.rounds, columns=int(model.in_lp.sum()), candidates=2 * len(data.a),
         seconds=time.perf_counter() - t0, gap=gap, vertex=model.vertex,
         dropped=model.dropped,

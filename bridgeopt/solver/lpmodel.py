@@ -38,9 +38,6 @@ ZERO_FORCE = 1e-9
 #: Simplex-sized LPs solve their first (cold) LP by interior point with crossover
 #: to a basis, then re-solve by warm dual simplex.
 FIRST_IPM = True
-#: Columns of the first LP that carry no force in it (and are nonbasic) leave the LP
-#: after that one solve, not after :data:`~bridgeopt.solver.adding.DROP_AFTER`.
-FIRST_LEAVE = True
 
 
 class LayoutModel:
@@ -95,13 +92,6 @@ class LayoutModel:
         #: Solve the first LP by interior point with crossover (then warm dual simplex).
         self.first_ipm = not ipm and FIRST_IPM
         self.solves = 0
-        #: Duals for the rows no column touches (None: HiGHS's), see :meth:`duals`.
-        self.guess = None
-        #: With ``ipm``: once the objective falls by at most this fraction in a round,
-        #: the next solve is by interior point with crossover and the rest by warm dual
-        #: simplex (None: interior point throughout).
-        self.switch = None
-        self._settled, self._last = False, np.inf
 
     def add(self, pair: np.ndarray, group: np.ndarray) -> None:
         """Put the members (pair[i], sense group[i]) in the LP (those in it already are skipped).
@@ -167,58 +157,29 @@ class LayoutModel:
             status = self._run()
         if self.pruner is not None and status == "optimal":
             force = self.forces()
-            at_zero = force <= ZERO_FORCE * force.max(initial=0.0)
-            if self.solves == 1 and FIRST_LEAVE:
-                # the first LP's columns (seed, nearest neighbours) count as old ones
-                self.pruner.zero = self.pruner.zero + at_zero * (self.pruner.after - 1)
-            self.pruner.solved(at_zero)
+            self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))
         return status
 
     def _run(self) -> str:
         first = self.solves == 0 and self.first_ipm
-        turn = self.switch is not None and self._settled
-        if first or turn:
+        if first:
             self.h.setOptionValue("solver", "ipm")
             self.h.setOptionValue("run_crossover", "on")
         self.h.run()
-        if first or turn:
+        if first:
             self.h.setOptionValue("solver", "simplex")
         self.solves += 1
-        status = model_status(self.h)
-        if turn and status == "optimal":
-            self.switch, self.vertex = None, True  # a basis from here on: warm dual simplex
-        elif self.switch is not None and status == "optimal":
-            value = float(self.h.getInfo().objective_function_value)
-            self._settled = self._last - value <= self.switch * abs(value)
-            self._last = value
-        return status
+        return model_status(self.h)
 
     def forces(self) -> np.ndarray:
         """Force of each member column of the last solve, in LP order. [-]"""
         return np.asarray(self.h.getSolution().col_value)[self.nfix:]
 
-    def duals(self) -> np.ndarray:
-        """Row duals of the last solve; on rows no column of the LP touches, :attr:`guess`.
-
-        Such a row is unloaded (else the LP had no optimum), so its dual is free in the
-        LP and any value keeps the duals optimal for it: pricing, the stopping rule and
-        the proven gap stay exact, and a good guess (the interior point duals before a
-        vertex re-solve) spares the rounds that HiGHS's arbitrary values would cost.
-        """
-        u = np.array(self.h.getSolution().row_dual, dtype=float)
-        if self.guess is not None:
-            touched = np.zeros(len(self.data.xz), dtype=bool)
-            touched[self.data.a[self.pair]] = True
-            touched[self.data.b[self.pair]] = True
-            touched[np.asarray(self.data.fixed) // 2] = True
-            empty = np.repeat(~touched, 2)
-            u[empty] = self.guess[empty]
-        return u
-
     def price(self):
         """(pair, sense, ratio work/cost) of the columns out of the LP that violate the dual
-        check at the last solve's duals (:meth:`duals`), or None."""
-        return self.pricer(self.data, self.in_lp, self.duals())
+        check at the last solve's duals, or None."""
+        return self.pricer(self.data, self.in_lp,
+                                np.asarray(self.h.getSolution().row_dual))
 
     def arrays(self):
         """(pair, sense) of the LP's member columns, in LP order. [-]"""
@@ -254,7 +215,6 @@ def vertex_solve(model: LayoutModel, objective: float, gap: float):
     simplex = LayoutModel(model.data, ipm=False, prune=False, columns=model.columns,
                           price=model.pricer)
     simplex.add(pair[used], sense[used].astype(np.int64))
-    simplex.guess = model.duals()
     if simplex.solve() != "optimal":
         return model, objective, gap
     value = float(simplex.h.getInfo().objective_function_value)
