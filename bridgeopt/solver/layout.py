@@ -180,8 +180,10 @@ def optimize_layout(problem: Problem, *, member_adding: bool = True,
     batch : int, optional
         Most members added per member-adding round. [-]
     coarse_start : bool
-        On fine grids, seed member adding with the members that the duals of a
-        grid twice as coarse predict to be active (fewer rounds; same optimum).
+        On fine grids, seed member adding from the optimum of a grid twice as
+        coarse: its members mapped onto the fine grid and the members its duals
+        predict to be active (:mod:`bridgeopt.solver.multilevel`; fewer rounds,
+        same optimum).
 
     Returns
     -------

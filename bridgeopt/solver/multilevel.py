@@ -242,8 +242,11 @@ def coarse_start(problem, grid, data, solve: Callable) -> CoarseStart | None:
     lat = lattice_of(data) if MAP_MEMBERS else None
     cpos = None
     if lat is not None:
-        origin = np.asarray(grid.xz[0] - np.asarray(grid.step) * lat.ij[0])
-        cpos = _sub_lattice(cgrid.xz, origin, np.asarray(grid.step))
+        step = np.asarray(grid.step, dtype=float)
+        origin = grid.xz[0] - step * lat.ij[0]
+        # the offset table's lattice is the grid's (same step), else no mapping
+        if np.abs(origin + lat.ij * step - grid.xz).max() <= 1e-7 * step.max():
+            cpos = _sub_lattice(cgrid.xz, origin, step)
     if cpos is None:
         return CoarseStart(_scipy_duals(cgrid.xz, cu, grid.xz).ravel(), None, None,
                            "coarse duals")
