@@ -52,7 +52,8 @@ PREDICT_PER_NODE = 4
 #: dual simplex re-solves of these highly degenerate LPs were seen to take
 #: 100000+ iterations at 7442 rows.
 IPM_ROWS = 4000
-#: With mapped seed columns, the first LP also holds the pairs of at most this reach.
+#: With mapped seed columns, the first LP also holds the pairs of at most this reach
+#: (0, the seed alone, was measured infeasible at 60 divisions: docs/benchmarks.md).
 SEED_REACH = 1
 #: With a coarser grid's members mapped onto the grid, interior-point-sized LPs take at
 #: most this many predicted pairs per node (smaller LPs, same rounds, docs/benchmarks.md).
@@ -310,9 +311,8 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
         pairs they predict to be active join the first LP. [-]
     seed_columns : (pair, sense) int arrays, optional
         Columns that join the first LP too (e.g. a coarser grid's optimum mapped
-        onto this one, :mod:`bridgeopt.solver.multilevel`); the first LP then
-        holds the nearest-neighbour pairs only if it has no optimum without
-        them (:data:`SEED_REACH`). [-]
+        onto this one, :mod:`bridgeopt.solver.multilevel`), with the pairs of
+        reach at most :data:`SEED_REACH` (widened while the LP has no optimum). [-]
 
     Returns
     -------
@@ -344,7 +344,6 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
                                  np.ones(len(seed), dtype=np.int64), sense])
         seed = np.concatenate([seed, seed, pair])
         reach = SEED_REACH
-
     # simplex solves to the exact optimum; the interior point method (large LPs) stops
     # at a proven gap, as it has no exact vertex duals
     result = add_members(model, data.reach, member_adding=member_adding, batch=batch,

@@ -84,6 +84,17 @@ def test_interior_point_rounds_from_a_mapped_start(small_coarse, monkeypatch):
     assert d.volume == pytest.approx(full.volume, rel=max(REL, lp.IPM_GAP))
 
 
+def test_seed_alone_gives_the_same_optimum(small_coarse, monkeypatch):
+    """A first LP of the mapped seed alone (widened to reach 1, 2, ... should it have no
+    optimum; at 16 divisions it has one) ends at the full ground structure's optimum."""
+    p = _bridge(16)
+    full = optimize_layout(p, member_adding=False)
+    monkeypatch.setattr(lp, "SEED_REACH", 0)
+    d = optimize_layout(p)
+    assert d.stats["start"] == "multilevel" and d.stats["gap"] == 0.0
+    assert d.volume == pytest.approx(full.volume, rel=REL)
+
+
 def test_start_labels_without_a_coarse_grid():
     p = _bridge(16)  # 8 cells across: below twice COARSE_MIN, no coarse start
     assert optimize_layout(p).stats["start"] == "reach 1"
