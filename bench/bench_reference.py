@@ -17,7 +17,8 @@ into a fresh HiGHS with the options member adding uses at that size; the lower
 bound of any member-adding scheme on that set) and the ratio of the two, LP
 rounds, columns in the final LP, candidate columns, peak resident memory of the
 process (taken before the final set is solved alone), the proven gap, whether the
-answer is a vertex and how many columns left the LP for staying at zero force.  ``--methods`` also times
+answer is a vertex, how many columns left the LP for staying at zero force and how
+the first LP was seeded (``Design.stats["start"]``).  ``--methods`` also times
 the final set alone with each HiGHS method (dual simplex; interior point without
 crossover), the measurement behind the method chosen per size.  ``--repeat N``
 runs each member-adding case N times and keeps the fastest (the machine is
@@ -86,6 +87,7 @@ used = "ipm" if calls and 2 * len(calls[0][0].xz) > lp.IPM_ROWS else "simplex"
 if used == "ipm" and d.stats["vertex"]:
     calls = calls[:-1]  # the last pricing checked the vertex re-solve's duals
 out["vertex"], out["dropped"] = d.stats["vertex"], d.stats["dropped"]
+out["start"] = d.stats["start"]
 if not full and calls:
     data, in_lp = calls[-1]
     out["alone_method"] = used
@@ -133,8 +135,8 @@ def main() -> None:
     extra = " simplex alone [s] | ipm alone [s] |" if args.methods else ""
     print("| divisions | method | time [s] | HiGHS alone on final set [s] | ratio | LP rounds "
           "| columns in LP | candidate columns | peak memory [MB] | volume [m3] "
-          f"| V sigma/(w L^2) | gap | vertex | columns dropped |{extra}")
-    print("|---" * (14 + 2 * args.methods) + "|")
+          f"| V sigma/(w L^2) | gap | vertex | columns dropped | start |{extra}")
+    print("|---" * (15 + 2 * args.methods) + "|")
     for r in rows:
         ratio = f"{r['seconds'] / r['alone']:.2f}" if "alone" in r else "-"
         alone = f"{r['alone']:.2f} ({r['alone_method']})" if "alone" in r else "-"
@@ -142,7 +144,7 @@ def main() -> None:
         print(f"| {r['divisions']} | {r['method']} | {r['seconds']:.2f} | {alone} | {ratio} | "
               f"{r['rounds']} | {r['columns']} | {r['candidates']} | {r['peak_mb']:.0f} | "
               f"{r['volume']:.3f} | {r['normalised']:.5f} | {r['gap']:.1e} | "
-              f"{r.get('vertex', '-')} | {r.get('dropped', '-')} |{more}")
+              f"{r.get('vertex', '-')} | {r.get('dropped', '-')} | {r.get('start', '-')} |{more}")
     for r in rows:
         if "tries" in r:
             print(f"\n{r['divisions']} divisions, member adding, {len(r['tries'])} runs [s]: "

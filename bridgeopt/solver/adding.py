@@ -217,7 +217,7 @@ def _all_groups(pair: np.ndarray, n_groups: int) -> tuple[np.ndarray, np.ndarray
 def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = True,
                 batch: int | None = None, gap_tol: float | None = None,
                 max_rounds: int = 500, seed: np.ndarray | None = None,
-                start_reach: int = 1) -> AddingResult:
+                seed_groups: np.ndarray | None = None, seed_reach: int = 1) -> AddingResult:
     """Run member adding (module docstring) on ``model``.
 
     Parameters
@@ -238,9 +238,11 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     seed : (s,) int array, optional
         Pairs to put in the first LP, in every group (e.g. predicted by a
         coarser grid's duals). [-]
-    start_reach : int
-        Lattice reach of the pairs put in the first LP besides ``seed`` (0: the seed
-        alone; should that LP have no optimum, the reach goes to 1 and doubles). [-]
+    seed_groups : (s,) int array, optional
+        The group of each seed pair, when each goes in one group only. [-]
+    seed_reach : int
+        With a seed, the first LP also holds the pairs of reach at most this
+        (0: the seed alone; widened to 1, 2, 4, ... while it has no optimum). [-]
 
     Returns
     -------
@@ -249,8 +251,8 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     n_groups = model.in_lp.shape[1]
     t0 = time.perf_counter()
     if member_adding and seed is not None:
-        model.add(*_all_groups(seed, n_groups))
-    level = start_reach if member_adding else np.inf
+        model.add(*(_all_groups(seed, n_groups) if seed_groups is None else (seed, seed_groups)))
+    level = (seed_reach if seed is not None else 1) if member_adding else np.inf
     rounds = 0
     while True:
         start = np.nonzero(reach <= level)[0]

@@ -10,11 +10,11 @@ as optimal far from the optimum.
 
 from __future__ import annotations
 
-import dataclasses
 import math
 
 import numpy as np
 
+from bridgeopt.solver import multilevel
 from bridgeopt.solver.adding import check_options
 from bridgeopt.solver.budget import check_fits
 from bridgeopt.solver.design import Design, Members, accepted, equilibrium_residual
@@ -59,32 +59,9 @@ def _check_restraints(problem: Problem, f: np.ndarray, fixed: np.ndarray) -> Non
                              + f" have a {name} component; fix {name} at one support at least")
 
 
-#: Grids at least twice this many cells across start from a coarser grid's duals.
-COARSE_MIN = 12
-
-
-def _coarse_duals(problem: Problem, grid: Grid) -> np.ndarray | None:
-    """Dimensionless duals of the problem on a grid twice as coarse, interpolated to ``grid``.
-
-    The coarse problem has the same domain and loads, hence the same reference
-    length, force and stress, so its dimensionless duals compare directly.
-    """
-    from scipy.interpolate import LinearNDInterpolator, NearestNDInterpolator
-
-    coarse = dataclasses.replace(problem, spacing=2 * problem.spacing)
-    try:
-        cgrid, _, _, sol, _ = solve_layout_lp(coarse, coarse_start=True)
-    except (SolveError, InputError):
-        return None
-    u = sol.duals.reshape(-1, 2)
-    out = np.zeros((grid.n, 2))
-    for c in range(2):
-        v = LinearNDInterpolator(cgrid.xz, u[:, c])(grid.xz)
-        bad = ~np.isfinite(v)
-        if bad.any():
-            v[bad] = NearestNDInterpolator(cgrid.xz, u[:, c])(grid.xz[bad])
-        out[:, c] = v
-    return out.ravel()
+def _solve_coarse(problem: Problem):
+    """The coarse problem of a multilevel start, itself started from a coarser one."""
+    return solve_layout_lp(problem, coarse_start=True)
 
 
 def scales(problem: Problem) -> tuple[float, float, float]:
@@ -172,11 +149,15 @@ def solve_layout_lp(problem: Problem, *, member_adding: bool = True, batch: int 
     a, b = candidate_pairs(problem, grid)
     data = scaled_lp_data(problem, grid.xz, a, b, f, fixed,
                           np.abs(grid.ij[b] - grid.ij[a]).max(axis=1), allowed)
-    guess = None
-    if member_adding and coarse_start and min(problem.grid_shape()) >= 2 * COARSE_MIN:
-        guess = _coarse_duals(problem, grid)
+    guess = columns = None
+    if member_adding and coarse_start and min(problem.grid_shape()) >= 2 * multilevel.COARSE_MIN:
+        start = multilevel.coarse_start(problem, grid, data, _solve_coarse)
+        if start is not None:
+            guess = start.duals
+            columns = None if start.pair is None else (start.pair, start.sense)
     try:
-        sol = solve_lp(data, member_adding=member_adding, batch=batch, dual_guess=guess)
+        sol = solve_lp(data, member_adding=member_adding, batch=batch, dual_guess=guess,
+                       seed_columns=columns)
     except SolveError as err:
         why = _span_limit_message(problem, grid, a, b) if err.status == "infeasible" else None
         if why:
@@ -199,8 +180,10 @@ def optimize_layout(problem: Problem, *, member_adding: bool = True,
     batch : int, optional
         Most members added per member-adding round. [-]
     coarse_start : bool
-        On fine grids, seed member adding with the members that the duals of a
-        grid twice as coarse predict to be active (fewer rounds; same optimum).
+        On fine grids, seed member adding from the optimum of a grid twice as
+        coarse: its members mapped onto the fine grid and the members its duals
+        predict to be active (:mod:`bridgeopt.solver.multilevel`; fewer rounds,
+        same optimum).
 
     Returns
     -------
@@ -344,7 +327,7 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
         nodes=nodes, members=members, loads=loads, reactions=reactions, duals=duals,
         stats={"rounds": sol.rounds, "columns": sol.columns, "candidates": sol.candidates,
                "seconds": sol.seconds, "grid_nodes": grid.n, "gap": sol.gap,
-               "vertex": sol.vertex, "dropped": sol.dropped,
+               "vertex": sol.vertex, "dropped": sol.dropped, "start": sol.start,
                "lp_volume": problem.copies * sol.objective * ref_force * ref_len / ref_sigma},
         copies=problem.copies, model_volume=model_volume,
         equilibrium_error=model_error, problem=problem)

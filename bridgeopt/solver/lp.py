@@ -52,6 +52,12 @@ PREDICT_PER_NODE = 4
 #: dual simplex re-solves of these highly degenerate LPs were seen to take
 #: 100000+ iterations at 7442 rows.
 IPM_ROWS = 4000
+#: With mapped seed columns, the first LP also holds the pairs of at most this reach
+#: (0, the seed alone, was measured infeasible at 60 divisions: docs/benchmarks.md).
+SEED_REACH = 1
+#: With a coarser grid's members mapped onto the grid, interior-point-sized LPs take at
+#: most this many predicted pairs per node (smaller LPs, same rounds, docs/benchmarks.md).
+PREDICT_PER_NODE_IPM = 2
 #: With the interior point method (no exact vertex duals), member adding stops
 #: once the proven optimality gap is below this.
 IPM_GAP = 1e-5
@@ -124,6 +130,11 @@ class LPSolution:
         Whether the answer is a basic (vertex) solution.
     dropped : int
         Columns removed at zero force during member adding. [-]
+    start : str
+        How the first LP was seeded: ``"reach 1"`` (nearest neighbours),
+        ``"coarse duals"`` (plus pairs predicted by a coarser grid's duals),
+        ``"multilevel"`` (plus a coarser grid's members mapped onto this one)
+        or ``"full"`` (no member adding).
     """
 
     objective: float
@@ -139,6 +150,7 @@ class LPSolution:
     gap: float = 0.0
     vertex: bool = True
     dropped: int = 0
+    start: str = "reach 1"
 
 
 def column_entries(data: LPData, pair: np.ndarray, sense: str):
@@ -281,7 +293,7 @@ def predicted_pairs(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
 
 
 def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = None,
-             dual_guess: np.ndarray | None = None) -> LPSolution:
+             dual_guess: np.ndarray | None = None, seed_columns=None) -> LPSolution:
     """Minimum-volume member forces for the dimensionless problem ``data``.
 
     Parameters
@@ -297,6 +309,10 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     dual_guess : ndarray, optional
         Estimated equality-row duals (e.g. interpolated from a coarser grid); the
         pairs they predict to be active join the first LP. [-]
+    seed_columns : (pair, sense) int arrays, optional
+        Columns that join the first LP too (e.g. a coarser grid's optimum mapped
+        onto this one, :mod:`bridgeopt.solver.multilevel`), with the pairs of
+        reach at most :data:`SEED_REACH` (widened while the LP has no optimum). [-]
 
     Returns
     -------
@@ -311,18 +327,28 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     """
     t0 = time.perf_counter()
     n_nodes = len(data.xz)
+    mapped = member_adding and seed_columns is not None
     ipm = 2 * n_nodes > IPM_ROWS
     # columns leave only between simplex solves: interior point rounds with removal
     # were measured to creep (40+ rounds of 3-8 s at 120 divisions, docs/benchmarks.md)
     model = LayoutModel(data, ipm=ipm, prune=member_adding and not ipm, columns=lp_columns,
                         price=price_candidates)
-    seed = None
+    seed, groups, reach = None, None, 1
     if member_adding and dual_guess is not None:
-        seed = predicted_pairs(data, dual_guess, int(PREDICT_PER_NODE * n_nodes))
+        per_node = PREDICT_PER_NODE_IPM if ipm and mapped else PREDICT_PER_NODE
+        seed = predicted_pairs(data, dual_guess, int(per_node * n_nodes))
+    if mapped:
+        pair, sense = seed_columns
+        seed = np.zeros(0, dtype=np.int64) if seed is None else seed
+        groups = np.concatenate([np.zeros(len(seed), dtype=np.int64),
+                                 np.ones(len(seed), dtype=np.int64), sense])
+        seed = np.concatenate([seed, seed, pair])
+        reach = SEED_REACH
     # simplex solves to the exact optimum; the interior point method (large LPs) stops
     # at a proven gap, as it has no exact vertex duals
     result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
-                         gap_tol=IPM_GAP if ipm else None, max_rounds=MAX_ROUNDS, seed=seed)
+                         gap_tol=IPM_GAP if ipm else None, max_rounds=MAX_ROUNDS, seed=seed,
+                         seed_groups=groups, seed_reach=reach)
     raise_for_status(result.status, "no structure in the ground structure can carry the "
                      "loads to the supports")
     objective = float(model.h.getInfo().objective_function_value)
@@ -343,4 +369,6 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
         reactions=x[:nfix].copy(), duals=np.asarray(sol.row_dual).copy(),
         rounds=result.rounds, columns=int(model.in_lp.sum()), candidates=2 * len(data.a),
         seconds=time.perf_counter() - t0, gap=gap, vertex=model.vertex,
-        dropped=model.dropped)
+        dropped=model.dropped,
+        start=("full" if not member_adding else "multilevel" if mapped
+               else "coarse duals" if dual_guess is not None else "reach 1"))

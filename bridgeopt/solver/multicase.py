@@ -272,7 +272,7 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
     seed = _envelope(study) if member_adding and ENVELOPE_SEED else None
     result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
                          gap_tol=GAP_TOL, max_rounds=MAX_ROUNDS, seed=seed,
-                         start_reach=START_REACH)
+                         seed_reach=START_REACH)
     status, rounds, gap = result.status, result.rounds, result.gap
     if status == "optimal" and not model.vertex:
         before = model.out["objective"] * (1.0 - gap)   # proven lower bound of the rounds
