@@ -158,8 +158,17 @@ class CableStayedForm:
                              "pylon top, harp stays evenly up the pylon)")
 
     def to_dict(self) -> dict:
-        """The ``[form]`` table of this spec: ``type`` and the keys given (not None)."""
-        return {"type": self.type, **_fields(self)}
+        """The ``[form]`` table of this spec: ``type`` and the keys given (not None).
+
+        With a forked pylon the stay pattern and the anchor rule are not used (the LP
+        chooses the stays, every anchor is free), so they are left out; read back, the
+        table gives the same spec (both are at their defaults).
+        """
+        table = {"type": self.type, **_fields(self)}
+        if self.pylon == "forked":
+            table.pop("pattern", None)
+            table.pop("anchors", None)
+        return table
 
 
 @dataclass(frozen=True, kw_only=True)

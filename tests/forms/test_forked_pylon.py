@@ -181,3 +181,13 @@ def test_the_pylon_key_reads_from_a_form_table():
     spec = parse_form({"type": "cable-stayed", "pylon": "forked"})
     assert spec.pylon == "forked" and spec.to_dict()["pylon"] == "forked"
     assert parse_form({"type": "cable-stayed"}).pylon == "vertical"
+
+
+def test_the_forked_table_leaves_out_the_unused_pattern_and_round_trips():
+    """A forked pylon's [form] table shows only keys that act on it (CLI summary, JSON)."""
+    from bridgeopt.forms.specs import parse_form
+
+    spec = CableStayedForm(pylon="forked")
+    table = spec.to_dict()
+    assert "pattern" not in table and "anchors" not in table and table["pylon"] == "forked"
+    assert parse_form(table) == spec
