@@ -39,7 +39,8 @@ PALETTE = {
 }
 
 #: Line colours and dashes of options in charts (reference first), own choice.
-OPTION_COLOURS = ("#1a1a1a", "#1f5c99", "#d9730d", "#3a9e8f", "#b0489a", "#8c6d1f", "#6b6bd6")
+OPTION_COLOURS = ("#1a1a1a", "#1f5c99", "#d9730d", "#3a9e8f", "#b0489a", "#8c6d1f", "#6b6bd6",
+                  "#b83b3b", "#4f8a2e")
 _DASHES = ("solid", "dash", "dot", "dashdot", "longdash", "longdashdot", "solid")
 
 #: Line widths drawn, thinnest to thickest. [px]
@@ -52,15 +53,20 @@ def option_style(index: int) -> dict:
     Parameters
     ----------
     index : int
-        Position of the option; colours and dashes repeat beyond the palette. [-]
+        Position of the option; colours and dashes repeat beyond the palette, but
+        no form (index >= 1) is ever drawn in the reference's style. [-]
 
     Returns
     -------
     dict
         ``{"color": ..., "dash": ...}`` for a plotly line.
     """
-    return {"color": OPTION_COLOURS[index % len(OPTION_COLOURS)],
-            "dash": _DASHES[index % len(_DASHES)]}
+    if index == 0:
+        return {"color": OPTION_COLOURS[0], "dash": _DASHES[0]}
+    # forms cycle through the other colours and dashes: never the reference's black line
+    k = index - 1
+    return {"color": OPTION_COLOURS[1 + k % (len(OPTION_COLOURS) - 1)],
+            "dash": _DASHES[1 + k % (len(_DASHES) - 1)]}
 
 
 def _mirror_x(design) -> float | None:
