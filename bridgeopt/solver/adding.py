@@ -6,7 +6,7 @@ pair in one or more groups (senses, or element groups), by the same rounds
 
 1. **seed** the LP with the pairs of lattice reach 1 (nearest neighbours), plus
    any pairs a guess of the duals predicts to be active (or the seed alone,
-   ``start_reach=0``); if that LP has no optimum, double the reach until it has
+   ``seed_reach=0``); if that LP has no optimum, double the reach until it has
    (or every pair is in);
 2. **solve** the LP over the members in it;
 3. **price** every candidate left out against the LP's duals (the dual check:
@@ -46,7 +46,7 @@ import numpy as np
 from bridgeopt.errors import InputError
 
 __all__ = ["MemberModel", "AddingResult", "add_members", "proven_gap", "strongest", "check_options",
-           "Pruner", "DROP_AFTER"]
+           "Pruner", "DROP_AFTER", "solve_with_removal"]
 
 log = logging.getLogger(__name__)
 #: Progress of long solves (the command line shows it; a library user may).
@@ -207,6 +207,48 @@ class Pruner:
         self.zero = self.zero[~drop]
         self.count += int(drop.sum())
         return drop
+
+
+def solve_with_removal(model) -> str:
+    """One solve of a model that removes columns (:class:`Pruner`), with the safety nets.
+
+    The columns due to leave are taken out (``model.remove_due()``), then the LP is
+    solved (``model.run_once()``).  The removed columns were at zero in a basic
+    optimum, so the LP without them has that optimum too; should HiGHS say otherwise
+    from the warm start, they come back (for good) and the LP is solved again; if it
+    still does, every column ever removed comes back, removal stops
+    (``model.pruner = None``) and the LP is solved from scratch.  Used by the
+    single-case (:class:`~bridgeopt.solver.lpmodel.LayoutModel`) and the multi-case
+    (:class:`~bridgeopt.solver.casemodel.CaseModel`) models.
+
+    Parameters
+    ----------
+    model : object
+        Has ``pruner`` (a :class:`Pruner` or None), ``in_lp`` ((pairs, groups) bool),
+        ``h`` (its ``highspy.Highs``), ``add(pair, group)``, ``remove_due()`` (the
+        (pair, group) arrays taken out, or None) and ``run_once()`` (HiGHS's status
+        word).
+
+    Returns
+    -------
+    str
+        ``"optimal"`` or HiGHS's words for the last solve.
+    """
+    gone = None
+    if model.pruner is not None and model.pruner.zero.max(initial=0) >= model.pruner.after:
+        gone = model.remove_due()
+    status = model.run_once()
+    if gone is not None and len(gone[0]) and status != "optimal":
+        model.add(*gone)
+        model.h.clearSolver()
+        status = model.run_once()
+    if model.pruner is not None and model.pruner.count and status != "optimal":
+        back = np.nonzero(model.pruner.dropped & ~model.in_lp)
+        model.pruner = None
+        model.add(back[0], back[1])
+        model.h.clearSolver()
+        status = model.run_once()
+    return status
 
 
 def _all_groups(pair: np.ndarray, n_groups: int) -> tuple[np.ndarray, np.ndarray]:

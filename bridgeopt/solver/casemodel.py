@@ -34,7 +34,7 @@ from collections.abc import Callable
 import highspy
 import numpy as np
 
-from bridgeopt.solver.adding import Pruner
+from bridgeopt.solver.adding import Pruner, solve_with_removal
 from bridgeopt.solver.elements import bar_factors
 from bridgeopt.solver.highs import (
     INF,
@@ -288,32 +288,23 @@ class CaseModel:
     def solve(self) -> str:
         """Remove the members due to leave, then solve: ``"optimal"`` or HiGHS's words.
 
-        The optimum goes to ``self.out``.
+        The optimum goes to ``self.out``; the safety nets are those of
+        :func:`~bridgeopt.solver.adding.solve_with_removal`.
         """
-        gone = None
-        if self.pruner is not None and self.pruner.zero.max(initial=0) >= self.pruner.after:
-            gone = self._prune()
-        status = self._run()
-        if gone is not None and len(gone[0]) and status != "optimal":
-            # a safety net: the members taken out were at zero in a basic optimum, so the
-            # LP without them has that optimum too; should HiGHS say otherwise from the
-            # warm start, they come back (for good) and the LP is solved again
-            self.add(*gone)
-            self.h.clearSolver()
-            status = self._run()
-        if self.pruner is not None and self.pruner.count and status != "optimal":
-            # still not: every member ever taken out comes back, removal stops, and the
-            # LP is solved from scratch
-            back = np.nonzero(self.pruner.dropped & ~self.in_lp)
-            self.pruner = None
-            self.add(back[0], back[1])
-            self.h.clearSolver()
-            status = self._run()
+        status = solve_with_removal(self)
         self.out = self._result() if status == "optimal" else None
         if self.pruner is not None and self.out is not None:
             area = self.out["area"]
             self.pruner.solved(area <= ZERO_AREA * area.max(initial=0.0))
         return status
+
+    def remove_due(self):
+        """Take out the members due to leave; the (pair, group) arrays taken out, or None."""
+        return self._prune()
+
+    def run_once(self) -> str:
+        """One HiGHS solve of the LP as it stands: ``"optimal"`` or HiGHS's words."""
+        return self._run()
 
     def _run(self) -> str:
         h = self.h

@@ -21,7 +21,7 @@ from collections.abc import Callable
 import highspy
 import numpy as np
 
-from bridgeopt.solver.adding import Pruner
+from bridgeopt.solver.adding import Pruner, solve_with_removal
 from bridgeopt.solver.highs import add_columns, model_status, new_highs, unit_columns
 
 __all__ = ["LayoutModel", "vertex_solve", "VERTEX", "FIRST_IPM", "ACTIVE_FORCE", "ZERO_FORCE"]
@@ -135,30 +135,23 @@ class LayoutModel:
         return gone
 
     def solve(self) -> str:
-        """Remove the columns due to leave, then solve: ``"optimal"`` or HiGHS's words."""
-        gone = None
-        if self.pruner is not None and self.pruner.zero.max(initial=0) >= self.pruner.after:
-            gone = self._prune()
-        status = self._run()
-        if gone is not None and len(gone[0]) and status != "optimal":
-            # a safety net: the deleted columns were at zero in a basic optimum, so the
-            # LP without them has that optimum too; should HiGHS say otherwise from the
-            # warm start, they come back (for good) and the LP is solved again
-            self.add(*gone)
-            self.h.clearSolver()
-            status = self._run()
-        if self.pruner is not None and self.pruner.count and status != "optimal":
-            # still not: every column ever removed comes back (the LP of member adding
-            # without removal), removal stops, and the LP is solved from scratch
-            back = np.nonzero(self.pruner.dropped & ~self.in_lp)
-            self.pruner = None
-            self.add(back[0], back[1])
-            self.h.clearSolver()
-            status = self._run()
+        """Remove the columns due to leave, then solve: ``"optimal"`` or HiGHS's words.
+
+        With the safety nets of :func:`~bridgeopt.solver.adding.solve_with_removal`.
+        """
+        status = solve_with_removal(self)
         if self.pruner is not None and status == "optimal":
             force = self.forces()
             self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))
         return status
+
+    def remove_due(self):
+        """Take out the columns due to leave; the (pair, sense) arrays taken out, or None."""
+        return self._prune()
+
+    def run_once(self) -> str:
+        """One HiGHS solve of the LP as it stands: ``"optimal"`` or HiGHS's words."""
+        return self._run()
 
     def _run(self) -> str:
         first = self.solves == 0 and self.first_ipm
