@@ -24,7 +24,7 @@ from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
 
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "form_solver",
-           "V_TOWERS", "V_TOWER_REACH", "solve_v_towers",
+           "V_TOWERS", "V_TOWER_REACH", "solve_v_towers", "v_tower_legs",
            "register_form", "unregister_form", "available_forms"]
 
 #: Name of the reference optimum in every study table (not a form name).
@@ -112,14 +112,37 @@ def solve_v_towers(bridge: BridgeScenario, options: Mapping) -> Design:
     Design
         The sized, geometry-optimized form.
     """
-    spacing = options.get("spacing")
+    legs = v_tower_legs(bridge, options.get("spacing"))
+    return form_solver("suspension", tower_legs=legs)(bridge, options)
+
+
+def v_tower_legs(bridge: BridgeScenario, spacing: float | None = None) -> int:
+    """The hanger, counted from the tower, at which a V-shaped tower's leg meets the cable.
+
+    Parameters
+    ----------
+    bridge : BridgeScenario
+        The crossing (span [m], grid divisions).
+    spacing : float, optional
+        Hanger spacing (default: the grid step). [m]
+
+    Returns
+    -------
+    int
+        round(:data:`V_TOWER_REACH` x hangers of the half span), at least 1 and short of
+        mid-span. [-]
+
+    Raises
+    ------
+    InputError
+        Fewer than 2 hangers in the half span.
+    """
     hangers = (bridge.divisions // 2 if spacing is None
                else max(1, round(0.5 * bridge.span / float(spacing))))
     if hangers < 2:
         raise InputError("bridge.divisions", bridge.divisions,
                          "at least 4 for V-shaped towers (a leg needs a hanger short of mid-span)")
-    legs = max(1, min(hangers - 1, round(V_TOWER_REACH * hangers)))
-    return form_solver("suspension", tower_legs=legs)(bridge, options)
+    return max(1, min(hangers - 1, round(V_TOWER_REACH * hangers)))
 
 
 #: Registered form solvers, by name: the package's forms, then any registered.

@@ -13,7 +13,8 @@ import pytest
 
 from bridgeopt import PRESETS, BridgeScenario, InputError
 from bridgeopt.forms import SuspensionForm, solve_form
-from bridgeopt.forms.registry import FORM_SOLVERS, KNOWN_FORMS, V_TOWERS, solve_v_towers
+from bridgeopt.forms.registry import (FORM_SOLVERS, KNOWN_FORMS, V_TOWERS, solve_v_towers,
+                                      v_tower_legs)
 
 
 def _bridge(divisions):
@@ -25,7 +26,12 @@ def test_offered_to_studies():
     assert V_TOWERS in KNOWN_FORMS and FORM_SOLVERS[V_TOWERS] is solve_v_towers
 
 
-@pytest.mark.parametrize("divisions, legs", [(12, 2), (30, 4)])
+@pytest.mark.parametrize("divisions, legs", [(8, 1), (12, 2), (30, 4), (60, 8)])
+def test_the_leg_sits_at_the_same_part_of_the_half_span(divisions, legs):
+    assert v_tower_legs(_bridge(divisions)) == legs          # round(4/15 x divisions/2)
+
+
+@pytest.mark.parametrize("divisions, legs", [(8, 1)])
 def test_same_design_as_the_suspension_form_with_that_leg(divisions, legs):
     b = _bridge(divisions)
     design = solve_v_towers(b, {"pylons": 1})          # a study's options: extra keys ignored
