@@ -170,3 +170,29 @@ def _restrained(design):
     for xm in prob.mirror_lines:
         out += [(int(i), 0) for i in np.nonzero(np.abs(nodes[:, 0] - xm) <= tol)[0]]
     return out
+
+
+def fail_after_removal(monkeypatch, model_class, module, failures: int) -> dict:
+    """Make HiGHS report "infeasible" ``failures`` times right after the first removal.
+
+    Patches ``model_class.remove_due`` (to arm on the first removal that takes columns
+    out) and ``module.model_status`` (to fail while armed); returns the state dict, whose
+    ``"left"`` is 0 once every forced failure has happened.
+    """
+    state = {"armed": False, "left": failures}
+    remove, status = model_class.remove_due, module.model_status
+
+    def arming(self):
+        gone = remove(self)
+        state["armed"] = len(gone[0]) > 0 and state["left"] == failures
+        return gone
+
+    def failing(h):
+        if state["armed"] and state["left"] > 0:
+            state["left"] -= 1
+            return "infeasible"
+        return status(h)
+
+    monkeypatch.setattr(model_class, "remove_due", arming)
+    monkeypatch.setattr(module, "model_status", failing)
+    return state

@@ -253,7 +253,7 @@ class CaseModel:
         basis.col_status, basis.row_status = col_status, row_status
         self.h.setBasis(basis)
 
-    def _prune(self) -> tuple[np.ndarray, np.ndarray]:
+    def remove_due(self) -> tuple[np.ndarray, np.ndarray]:
         """Take out the members due to leave whose columns are all nonbasic.
 
         Returns the (pair, group) of the members taken out.
@@ -298,15 +298,8 @@ class CaseModel:
             self.pruner.solved(area <= ZERO_AREA * area.max(initial=0.0))
         return status
 
-    def remove_due(self):
-        """Take out the members due to leave; the (pair, group) arrays taken out, or None."""
-        return self._prune()
-
     def run_once(self) -> str:
         """One HiGHS solve of the LP as it stands: ``"optimal"`` or HiGHS's words."""
-        return self._run()
-
-    def _run(self) -> str:
         h = self.h
         if self.ipm:
             h.setOptionValue("run_crossover", "off")

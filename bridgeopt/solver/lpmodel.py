@@ -113,7 +113,7 @@ class LayoutModel:
                 if self.pruner is not None:
                     self.pruner.added(len(kept))
 
-    def _prune(self) -> tuple[np.ndarray, np.ndarray]:
+    def remove_due(self) -> tuple[np.ndarray, np.ndarray]:
         """Delete the columns that stayed at zero force (nonbasic ones, where there is a basis).
 
         Returns the (pair, sense) of the deleted columns.
@@ -145,15 +145,8 @@ class LayoutModel:
             self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))
         return status
 
-    def remove_due(self):
-        """Take out the columns due to leave; the (pair, sense) arrays taken out, or None."""
-        return self._prune()
-
     def run_once(self) -> str:
         """One HiGHS solve of the LP as it stands: ``"optimal"`` or HiGHS's words."""
-        return self._run()
-
-    def _run(self) -> str:
         first = self.solves == 0 and self.first_ipm
         if first:
             self.h.setOptionValue("solver", "ipm")

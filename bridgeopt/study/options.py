@@ -37,7 +37,8 @@ from bridgeopt.forms.quantities import dimension_columns
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.solver.design import Design
 from bridgeopt.study.crossings import crossing_name, reference_on, series_name
-from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_scenario
+from bridgeopt.study.solve import (BELOW_REFERENCE_TOL, OPTION_STATUS, STATUSES, below_reference,
+                                   case_status, solve_scenario)
 from bridgeopt.study.tables import bridge_from_file, inputs_table, quantities
 
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",
@@ -168,10 +169,6 @@ def solve_options(bridge: BridgeScenario, forms: Iterable[str] = (),
     return {n: bounded(o, ref) if n != REFERENCE else o for n, o in results.items()}
 
 
-#: A form lighter than its reference by more than this part is refused (not drawn). [-]
-BELOW_REFERENCE_TOL = 1e-6
-
-
 def bounded(option: Option, reference: Design | None) -> Option:
     """``option``, or a failed one when its form is lighter than the reference it is set against.
 
@@ -204,13 +201,10 @@ def bounded(option: Option, reference: Design | None) -> Option:
             own = reference_on(d.problem)
         except (SolveError, InputError):
             return option
-    if d.volume >= own.volume * (1 - BELOW_REFERENCE_TOL):
+    message = below_reference(option.name, d.volume, own.volume)
+    if message is None:
         return option
-    return Option(option.name, "failed", None,
-                  f"{option.name}: {d.volume:.6g} m3 is below the reference optimum it is set "
-                  f"against ({own.volume:.6g} m3): the grid is too coarse to bound a form whose "
-                  "nodes fall between its nodes; use more grid divisions (bridge.divisions)",
-                  option.seconds)
+    return Option(option.name, "failed", None, message, option.seconds)
 
 
 def comparison_table(bridge: BridgeScenario, results: Mapping[str, Option]):

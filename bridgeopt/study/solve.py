@@ -33,7 +33,7 @@ from bridgeopt.solver.layout import optimize_layout
 from bridgeopt.solver.multicase import CaseDesign, optimize_cases
 
 __all__ = ["Solved", "solve_scenario", "form_reference", "STATUSES", "CASE_STATUSES",
-           "OPTION_STATUS", "case_status"]
+           "OPTION_STATUS", "case_status", "below_reference", "BELOW_REFERENCE_TOL"]
 
 #: Statuses of an option of a study: solved, no solver registered, or the solve raised.
 STATUSES = ("optimal", "unavailable", "failed")
@@ -119,6 +119,37 @@ def form_reference(scenario: Scenario) -> Design:
     return design
 
 
+#: A form lighter than its reference by more than this part is refused, not shown. [-]
+BELOW_REFERENCE_TOL = 1e-6
+
+
+def below_reference(what: str, volume: float, reference_volume: float) -> str | None:
+    """Why a form's volume cannot be shown against its reference, or None when it can.
+
+    The reference optimum bounds every structure whose nodes are grid nodes (W.S. Dorn,
+    R.E. Gomory, H.J. Greenberg 1964, J. de Mecanique 3:25-52); a form with nodes between
+    them (free anchors, leg heads, inclined hangers) can fall under it on a coarse grid.
+    Such a result is no finding: the solve is refused.
+
+    Parameters
+    ----------
+    what : str
+        The form, as the message names it ("the cable-stayed form").
+    volume, reference_volume : float
+        The form's volume and that of the reference it is set against. [m3]
+
+    Returns
+    -------
+    str or None
+        The refusal's message (asking for more ``bridge.divisions``), or None.
+    """
+    if not volume < reference_volume * (1 - BELOW_REFERENCE_TOL):
+        return None
+    return (f"{what} ({volume:.6g} m3) is below the reference optimum it is set against "
+            f"({reference_volume:.6g} m3): the grid is too coarse to bound a form whose nodes "
+            "fall between its nodes; use more grid divisions (bridge.divisions)")
+
+
 def solve_scenario(scenario: Scenario, *, geometry_optimization: bool | None = None,
                    member_adding: bool | None = None,
                    reference: Design | None = None) -> Solved:
@@ -167,14 +198,10 @@ def solve_scenario(scenario: Scenario, *, geometry_optimization: bool | None = N
                 reference = form_reference(scenario)
             form = solve_form(scenario.bridge, scenario.form, reference=reference,
                               member_adding=opts.member_adding)
-            if form.volume < form.reference_volume * (1 - 1e-6):
-                # the reference bounds every structure on its grid nodes; a form with nodes
-                # between them can fall below it on a coarse grid: no finding, a refusal
-                raise SolveError("below-reference",
-                                 f"the {scenario.form.type} form ({form.volume:.6g} m3) is "
-                                 f"below its reference optimum ({form.reference_volume:.6g} "
-                                 "m3): the grid is too coarse to bound a form whose nodes fall "
-                                 "between its nodes; use more bridge.divisions")
+            message = below_reference(f"the {scenario.form.type} form", form.volume,
+                                      form.reference_volume)
+            if message:
+                raise SolveError("below-reference", message)
             return Solved(scenario, form.design, form)
         design = optimize_layout(scenario.problem, member_adding=opts.member_adding,
                                  batch=opts.batch)

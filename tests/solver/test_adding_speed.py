@@ -16,6 +16,7 @@ from bridgeopt.errors import InputError
 from bridgeopt.solver import lp, lpmodel
 from bridgeopt.solver.adding import Pruner
 from bridgeopt.solver.layout import solve_layout_lp
+from helpers import fail_after_removal
 
 REL = 1e-6  # same optimum as the full ground structure (issue 12)
 
@@ -77,22 +78,7 @@ def test_columns_come_back_when_a_solve_after_removal_fails(monkeypatch, failure
     (after two failures: every column ever removed) and the optimum is the same."""
     p = _bridge(16)
     full = optimize_layout(p, member_adding=False)
-    state = {"armed": False, "left": failures}
-    prune, status = lpmodel.LayoutModel._prune, lpmodel.model_status
-
-    def arming(self):
-        gone = prune(self)
-        state["armed"] = len(gone[0]) > 0 and state["left"] == failures
-        return gone
-
-    def failing(h):
-        if state["armed"] and state["left"] > 0:
-            state["left"] -= 1
-            return "infeasible"
-        return status(h)
-
-    monkeypatch.setattr(lpmodel.LayoutModel, "_prune", arming)
-    monkeypatch.setattr(lpmodel, "model_status", failing)
+    state = fail_after_removal(monkeypatch, lpmodel.LayoutModel, lpmodel, failures)
     d = optimize_layout(p, coarse_start=False)
     assert state["left"] == 0
     assert d.volume == pytest.approx(full.volume, rel=REL)

@@ -19,6 +19,7 @@ from bridgeopt.model.crossing import full_span_problem
 from bridgeopt.model.loads import CaseStudy, LoadCase, UnitCosts, traffic_load
 from bridgeopt.solver import casemodel, multicase
 from bridgeopt.solver.multicase import GAP_TOL, optimize_cases
+from helpers import fail_after_removal
 
 REL = 2e-6  # same optimum: member adding stops at a proven gap below 1e-6 (multicase.GAP_TOL)
 
@@ -119,22 +120,7 @@ def test_members_come_back_when_a_solve_after_removal_fails(monkeypatch, failure
     monkeypatch.setattr(multicase, "IPM_ROUNDS", False)
     study = _study()
     full = optimize_cases(study, member_adding=False)
-    state = {"armed": False, "left": failures}
-    prune, status = casemodel.CaseModel._prune, casemodel.model_status
-
-    def arming(self):
-        gone = prune(self)
-        state["armed"] = len(gone[0]) > 0 and state["left"] == failures
-        return gone
-
-    def failing(h):
-        if state["armed"] and state["left"] > 0:
-            state["left"] -= 1
-            return "infeasible"
-        return status(h)
-
-    monkeypatch.setattr(casemodel.CaseModel, "_prune", arming)
-    monkeypatch.setattr(casemodel, "model_status", failing)
+    state = fail_after_removal(monkeypatch, casemodel.CaseModel, casemodel, failures)
     d = optimize_cases(study, batch=50)
     assert state["left"] == 0
     assert d.cost == pytest.approx(full.cost, rel=REL)
