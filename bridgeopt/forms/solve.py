@@ -20,7 +20,7 @@ import numpy as np
 
 from bridgeopt.model.bridge import BridgeScenario
 from bridgeopt.cautions import CAUTIONS
-from bridgeopt.solver.design import Design
+from bridgeopt.solver.design import Design, below_reference
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.frame import Frame, size_frame
 from bridgeopt.geometry.optimize import NodeMoves, optimize_geometry
@@ -360,10 +360,10 @@ def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,
     ref = None
     if compare:
         ref = reference or optimize_layout(problem, member_adding=member_adding)
-        if design.volume < ref.volume * (1 - 1e-6):
-            log.warning("the %s form (%.6g m3) is lighter than the reference optimum on this grid "
-                        "(%.6g m3): the grid is too coarse to bound it; use more "
-                        "bridge.divisions", spec.type, design.volume, ref.volume)
+        # the caller decides whether to refuse it (the studies and solve_scenario do)
+        message = below_reference(f"the {spec.type} form", design.volume, ref.volume)
+        if message:
+            log.warning("%s", message)
     geometry = form_geometry(design, spec.type, deck_level(problem)[2])
     if geometry.get("deck_panel", 0.0) > 1.01 * bridge.spacing:
         log.warning("the %s form loads its deck only every %.6g m, more coarsely than the "

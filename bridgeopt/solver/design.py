@@ -11,7 +11,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-__all__ = ["Members", "Design", "equilibrium_residual", "accepted", "EQUILIBRIUM_TOL"]
+__all__ = ["Members", "Design", "equilibrium_residual", "accepted", "EQUILIBRIUM_TOL",
+           "below_reference", "BELOW_REFERENCE_TOL"]
 
 #: Largest out-of-balance force of a returned design, as a part of the applied load. [-]
 EQUILIBRIUM_TOL = 1e-6
@@ -235,3 +236,34 @@ def accepted(volume: float, equilibrium_error: float, what: str = "design") -> N
         raise SolveError("numerical", f"the {what} fails the independent equilibrium check "
                          f"(out of balance by {equilibrium_error!r} of the applied load, more "
                          f"than {EQUILIBRIUM_TOL:g}); it is not returned (docs/limits.md)")
+
+
+#: A form lighter than its reference by more than this part is refused, not shown. [-]
+BELOW_REFERENCE_TOL = 1e-6
+
+
+def below_reference(what: str, volume: float, reference_volume: float) -> str | None:
+    """Why a form's volume cannot be shown against its reference, or None when it can.
+
+    The reference optimum bounds every structure whose nodes are grid nodes (W.S. Dorn,
+    R.E. Gomory, H.J. Greenberg 1964, J. de Mecanique 3:25-52); a form with nodes between
+    them (free anchors, leg heads, inclined hangers) can fall under it on a coarse grid.
+    Such a result is no finding: the solve is refused.
+
+    Parameters
+    ----------
+    what : str
+        The form, as the message names it ("the cable-stayed form").
+    volume, reference_volume : float
+        The form's volume and that of the reference it is set against. [m3]
+
+    Returns
+    -------
+    str or None
+        The refusal's message (asking for more ``bridge.divisions``), or None.
+    """
+    if not volume < reference_volume * (1 - BELOW_REFERENCE_TOL):
+        return None
+    return (f"{what} ({volume:.6g} m3) is below the reference optimum it is set against "
+            f"({reference_volume:.6g} m3): the grid is too coarse to bound a form whose nodes "
+            "fall between its nodes; use more grid divisions (bridge.divisions)")

@@ -35,10 +35,9 @@ from bridgeopt.forms.registry import (FORM_SOLVERS, KNOWN_FORMS, REFERENCE, Form
                                       available_forms, register_form, unregister_form)
 from bridgeopt.forms.quantities import dimension_columns
 from bridgeopt.model.bridge import BridgeScenario
-from bridgeopt.solver.design import Design
+from bridgeopt.solver.design import BELOW_REFERENCE_TOL, Design, below_reference
 from bridgeopt.study.crossings import crossing_name, reference_on, series_name
-from bridgeopt.study.solve import (BELOW_REFERENCE_TOL, OPTION_STATUS, STATUSES, below_reference,
-                                   case_status, solve_scenario)
+from bridgeopt.study.solve import OPTION_STATUS, STATUSES, case_status, solve_scenario
 from bridgeopt.study.tables import bridge_from_file, inputs_table, quantities
 
 __all__ = ["REFERENCE", "KNOWN_FORMS", "FORM_SOLVERS", "FormSolver", "Option", "register_form",

@@ -28,12 +28,12 @@ from bridgeopt.errors import InputError, SolveError
 from bridgeopt.files.scenario import Scenario
 from bridgeopt.forms import FormResult, ReferenceForm, form_problem, solve_form
 from bridgeopt.geometry.optimize import optimize_geometry
-from bridgeopt.solver.design import Design
+from bridgeopt.solver.design import Design, below_reference
 from bridgeopt.solver.layout import optimize_layout
 from bridgeopt.solver.multicase import CaseDesign, optimize_cases
 
 __all__ = ["Solved", "solve_scenario", "form_reference", "STATUSES", "CASE_STATUSES",
-           "OPTION_STATUS", "case_status", "below_reference", "BELOW_REFERENCE_TOL"]
+           "OPTION_STATUS", "case_status"]
 
 #: Statuses of an option of a study: solved, no solver registered, or the solve raised.
 STATUSES = ("optimal", "unavailable", "failed")
@@ -117,37 +117,6 @@ def form_reference(scenario: Scenario) -> Design:
         if opts.geometry_optimization:
             design = optimize_geometry(design)
     return design
-
-
-#: A form lighter than its reference by more than this part is refused, not shown. [-]
-BELOW_REFERENCE_TOL = 1e-6
-
-
-def below_reference(what: str, volume: float, reference_volume: float) -> str | None:
-    """Why a form's volume cannot be shown against its reference, or None when it can.
-
-    The reference optimum bounds every structure whose nodes are grid nodes (W.S. Dorn,
-    R.E. Gomory, H.J. Greenberg 1964, J. de Mecanique 3:25-52); a form with nodes between
-    them (free anchors, leg heads, inclined hangers) can fall under it on a coarse grid.
-    Such a result is no finding: the solve is refused.
-
-    Parameters
-    ----------
-    what : str
-        The form, as the message names it ("the cable-stayed form").
-    volume, reference_volume : float
-        The form's volume and that of the reference it is set against. [m3]
-
-    Returns
-    -------
-    str or None
-        The refusal's message (asking for more ``bridge.divisions``), or None.
-    """
-    if not volume < reference_volume * (1 - BELOW_REFERENCE_TOL):
-        return None
-    return (f"{what} ({volume:.6g} m3) is below the reference optimum it is set against "
-            f"({reference_volume:.6g} m3): the grid is too coarse to bound a form whose nodes "
-            "fall between its nodes; use more grid divisions (bridge.divisions)")
 
 
 def solve_scenario(scenario: Scenario, *, geometry_optimization: bool | None = None,
