@@ -35,8 +35,10 @@ from bench_form_ratios import crossing
 from bridgeopt import SolveError, optimize_layout
 from bridgeopt.forms import SuspensionForm, form_problem, solve_form
 from bridgeopt.forms.builder import FrameBuilder, deck_level
+from bridgeopt.geometry.moves import MIN_REACH
 from bridgeopt.geometry.optimize import optimize_geometry
 from bridgeopt.solver.frame import size_frame
+from bridgeopt.solver.layout import scales
 
 PANELS = 15          # hangers per half span at 30 divisions
 GAP = 1e-3           # least hanger lean, as a part of the panel (as forms/suspension.py)
@@ -55,12 +57,13 @@ def net(problem, cable: np.ndarray, reach: float | None, rise: float):
     b = FrameBuilder(problem)
     xs, xe, zd = deck_level(problem)
     p = (xe - xs) / PANELS
+    gap = max(GAP * p, 2 * MIN_REACH * scales(problem)[0])   # as forms/suspension.py
     xd = xs + p * np.arange(PANELS + 1)
     cable = cable.copy()
     for j in range(1, len(cable) - 1):   # off the deck points' verticals
         k = int(np.argmin(np.abs(xd - cable[j, 0])))
-        if abs(xd[k] - cable[j, 0]) < GAP * p:
-            cable[j, 0] = xd[k] + (GAP * p if k == 0 else -GAP * p)
+        if abs(xd[k] - cable[j, 0]) < gap:
+            cable[j, 0] = xd[k] + (gap if k == 0 else -gap)
     base = b.node(xs, zd)
     b.foundation(xs, base)
     nodes = [b.node(x, z) for x, z in cable]
@@ -78,8 +81,8 @@ def net(problem, cable: np.ndarray, reach: float | None, rise: float):
         h = cable[j, 1] - zd
         b.parameter(f"cable height {j}", least - h, rise - h, {(nodes[j], 1): 1.0})
         if j < len(nodes) - 1:
-            lo = max(xd[xd < cable[j, 0]].max(), cable[j - 1, 0]) + GAP * p
-            hi = xd[xd > cable[j, 0]].min() - GAP * p
+            lo = max(xd[xd < cable[j, 0]].max(), cable[j - 1, 0]) + gap
+            hi = xd[xd > cable[j, 0]].min() - gap
             b.parameter(f"cable x {j}", lo - cable[j, 0], hi - cable[j, 0],
                         {(nodes[j], 0): 1.0})
     frame, moves = b.build()
