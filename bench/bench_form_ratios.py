@@ -10,8 +10,10 @@ then every anchor, the mast top and the leg heads free) and the suspension form
 (every cable node's height, the tower height and the hanger positions free:
 inclined hangers, each cable node up to one panel towards the tower from its
 deck point), and the same with V-shaped towers (an inclined leg from each tower
-foot to the cable at the 4th hanger), are sized, geometry-optimized and
-compared with it.
+foot to the cable at the 4th hanger), and the suspension form with hangers
+leaning up to 4 or 6 panels (``hanger_lean``, the lean continuation of
+``bridgeopt/forms/hangers.py``) are sized, geometry-optimized and compared
+with it.
 
 Usage::
 
@@ -38,6 +40,8 @@ FORMS = {
     "cable-stayed forked pylon": CableStayedForm(pylon="forked"),
     "suspension": SuspensionForm(),
     "suspension, V-towers (tower_legs 4)": SuspensionForm(tower_legs=4),
+    "suspension, hanger_lean 4 (continuation)": SuspensionForm(hanger_lean=4.0),
+    "suspension, hanger_lean 6 (continuation)": SuspensionForm(hanger_lean=6.0),
 }
 
 

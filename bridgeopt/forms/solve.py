@@ -27,6 +27,7 @@ from bridgeopt.geometry.optimize import NodeMoves, optimize_geometry
 from bridgeopt.solver.layout import optimize_layout
 from bridgeopt.forms.build import build_form, form_problem, self_weight_sag, single_element_reach
 from bridgeopt.forms.builder import deck_level
+from bridgeopt.forms.hangers import lean_continuation
 from bridgeopt.forms.quantities import (GROUPS, dimension_lines, form_dimensions, form_geometry,
                                         group_quantities, on_mirror_line)
 from bridgeopt.forms.specs import (ArchForm, CableStayedForm, FormSpec, ReferenceForm,
@@ -282,7 +283,9 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
                       ["pylon_height"]}
     elif isinstance(spec, SuspensionForm) and spec.shape != "free" and spec.sag_ratio is None \
             and spec.tower_height is None:
-        free = dataclasses.replace(spec, shape="free"), None
+        # a lean past one panel: from the one-panel box, then the continuation (hangers.py)
+        free = dataclasses.replace(spec, shape="free",
+                                   hanger_lean=min(spec.hanger_lean, 1.0)), None
     elif isinstance(spec, ArchForm) and spec.shape != "free" and spec.rise_ratio is None:
         free = dataclasses.replace(spec, shape="free"), None
     if free is not None:
@@ -293,6 +296,9 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
             log.warning("free dimensions of the %s form not optimized: %s", spec.type, err)
             return best, stage1
         best = _polish(frame, moves, best, spec.type)
+        if getattr(spec, "hanger_lean", 0.0) > 1.0:
+            best = lean_continuation(frame, moves, best, lambda f, m, d: _polish(
+                f, m, d, spec.type), lean=spec.hanger_lean)
     return best, stage1
 
 

@@ -194,7 +194,10 @@ class SuspensionForm:
         a free sag and tower height): how far, in hanger panels, each hanger's
         cable node may move from above its deck point towards the tower
         (inclined hangers; the deck points stay on the grid); 0 keeps the
-        hangers vertical. [-]
+        hangers vertical.  Above 1 the free stage starts from the one-panel
+        optimum and continues round by round (:mod:`bridgeopt.forms.hangers`);
+        the hangers nearest the tower then act as stays from its top (a hybrid
+        with a cable-stayed fan). [-]
     tower_legs : int
         0: vertical towers.  From 1: V-shaped towers in elevation, each with an
         inclined compression leg on either side from the tower foot to the main
