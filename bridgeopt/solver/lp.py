@@ -331,8 +331,10 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     ipm = 2 * n_nodes > IPM_ROWS
     # columns leave only between simplex solves: interior point rounds with removal
     # were measured to creep (40+ rounds of 3-8 s at 120 divisions, docs/benchmarks.md)
+    # a first LP seeded from a coarser grid's optimum holds many columns far from entering:
+    # they leave after its solve (lpmodel.FIRST_DROP_RATIO)
     model = LayoutModel(data, ipm=ipm, prune=member_adding and not ipm, columns=lp_columns,
-                        price=price_candidates)
+                        price=price_candidates, first_drop=mapped)
     seed, groups, reach = None, None, 1
     if member_adding and dual_guess is not None:
         per_node = PREDICT_PER_NODE_IPM if ipm and mapped else PREDICT_PER_NODE
