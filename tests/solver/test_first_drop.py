@@ -114,3 +114,16 @@ def test_without_a_coarse_start_nothing_leaves_after_one_solve(spy):
     d = optimize_layout(_bridge(16))
     assert d.stats["start"] == "reach 1"
     assert spy == []  # the first-drop path is for coarse-started models only
+
+
+def test_coarse_levels_keep_their_columns(small_coarse, spy):
+    """32 -> 16 -> 8 divisions: the 16-division level is mapped too, but only the finest
+    level removes columns after its first solve (the coarse vertex seeds the finer grid)."""
+    p = _bridge(32)
+    d = optimize_layout(p)
+    assert d.stats["start"] == "multilevel"
+    assert len(spy) == 1
+    assert len(spy[0]["force"]) > 0 and spy[0]["due"].any()
+    assert (
+        d.stats["grid_nodes"] == 17 * 17
+    )  # the finest grid: 16 cells each way (half span)
