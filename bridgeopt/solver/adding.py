@@ -187,6 +187,19 @@ class Pruner:
         """
         self.zero = np.where(at_zero, self.zero + 1, 0)
 
+    def due_now(self, mask: np.ndarray) -> None:
+        """Make the members ``mask`` (LP order) due to leave at the next :meth:`pick`.
+
+        For members already known to be far from entering (e.g. a large reduced cost
+        at a vertex optimum); :meth:`pick` still takes only removable ones, at most once.
+
+        Parameters
+        ----------
+        mask : (m,) bool array
+            Members, in LP order. [-]
+        """
+        self.zero[mask] = np.maximum(self.zero[mask], self.after)
+
     def pick(self, pair: np.ndarray, group: np.ndarray, removable: np.ndarray) -> np.ndarray:
         """Members (LP order) to take out now; they are forgotten here.
 

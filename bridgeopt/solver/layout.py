@@ -61,7 +61,7 @@ def _check_restraints(problem: Problem, f: np.ndarray, fixed: np.ndarray) -> Non
 
 def _solve_coarse(problem: Problem):
     """The coarse problem of a multilevel start, itself started from a coarser one."""
-    return solve_layout_lp(problem, coarse_start=True)
+    return solve_layout_lp(problem, coarse_start=True, first_drop=False)
 
 
 def scales(problem: Problem) -> tuple[float, float, float]:
@@ -119,7 +119,8 @@ def scaled_lp_data(problem: Problem, xz: np.ndarray, a: np.ndarray, b: np.ndarra
 
 
 def solve_layout_lp(problem: Problem, *, member_adding: bool = True, batch: int | None = None,
-                    coarse_start: bool = True, allowed: np.ndarray | None = None):
+                    coarse_start: bool = True, allowed: np.ndarray | None = None,
+                    first_drop: bool = True):
     """Grid, loads, LP data, LP optimum and scales of ``problem``.
 
     Parameters
@@ -130,6 +131,8 @@ def solve_layout_lp(problem: Problem, *, member_adding: bool = True, batch: int 
         As :func:`optimize_layout`.
     allowed : (n_pairs, 2) bool array, optional
         Senses each candidate pair may take (see :class:`LPData`).
+    first_drop : bool
+        As :func:`bridgeopt.solver.lp.solve_lp` (False for a coarse level).
 
     Returns
     -------
@@ -157,7 +160,7 @@ def solve_layout_lp(problem: Problem, *, member_adding: bool = True, batch: int 
             columns = None if start.pair is None else (start.pair, start.sense)
     try:
         sol = solve_lp(data, member_adding=member_adding, batch=batch, dual_guess=guess,
-                       seed_columns=columns)
+                       seed_columns=columns, first_drop=first_drop)
     except SolveError as err:
         why = _span_limit_message(problem, grid, a, b) if err.status == "infeasible" else None
         if why:

@@ -293,7 +293,8 @@ def predicted_pairs(data: LPData, guess: np.ndarray, limit: int) -> np.ndarray:
 
 
 def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = None,
-             dual_guess: np.ndarray | None = None, seed_columns=None) -> LPSolution:
+             dual_guess: np.ndarray | None = None, seed_columns=None,
+             first_drop: bool = True) -> LPSolution:
     """Minimum-volume member forces for the dimensionless problem ``data``.
 
     Parameters
@@ -313,6 +314,10 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
         Columns that join the first LP too (e.g. a coarser grid's optimum mapped
         onto this one, :mod:`bridgeopt.solver.multilevel`), with the pairs of
         reach at most :data:`SEED_REACH` (widened while the LP has no optimum). [-]
+    first_drop : bool
+        With ``seed_columns``, the first LP's columns far from entering leave after its
+        solve (:data:`bridgeopt.solver.lpmodel.FIRST_DROP_RATIO`); off for the coarse
+        levels of a multilevel start, whose vertex seeds the finer grid.
 
     Returns
     -------
@@ -331,8 +336,10 @@ def solve_lp(data: LPData, *, member_adding: bool = True, batch: int | None = No
     ipm = 2 * n_nodes > IPM_ROWS
     # columns leave only between simplex solves: interior point rounds with removal
     # were measured to creep (40+ rounds of 3-8 s at 120 divisions, docs/benchmarks.md)
+    # a first LP seeded from a coarser grid's optimum holds many columns far from entering:
+    # they leave after its solve (lpmodel.FIRST_DROP_RATIO)
     model = LayoutModel(data, ipm=ipm, prune=member_adding and not ipm, columns=lp_columns,
-                        price=price_candidates)
+                        price=price_candidates, first_drop=mapped and first_drop)
     seed, groups, reach = None, None, 1
     if member_adding and dual_guess is not None:
         per_node = PREDICT_PER_NODE_IPM if ipm and mapped else PREDICT_PER_NODE

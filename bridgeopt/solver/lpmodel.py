@@ -24,7 +24,8 @@ import numpy as np
 from bridgeopt.solver.adding import Pruner, solve_with_removal
 from bridgeopt.solver.highs import add_columns, model_status, new_highs, unit_columns
 
-__all__ = ["LayoutModel", "vertex_solve", "VERTEX", "FIRST_IPM", "ACTIVE_FORCE", "ZERO_FORCE"]
+__all__ = ["LayoutModel", "vertex_solve", "VERTEX", "FIRST_IPM", "FIRST_DROP_RATIO",
+           "ACTIVE_FORCE", "ZERO_FORCE"]
 
 #: After interior point rounds, re-solve the columns they use by dual simplex for a
 #: vertex (basic) optimum: forces on few members, exact duals.
@@ -38,6 +39,11 @@ ZERO_FORCE = 1e-9
 #: Simplex-sized LPs solve their first (cold) LP by interior point with crossover
 #: to a basis, then re-solve by warm dual simplex.
 FIRST_IPM = True
+#: With ``first_drop``, the columns of the first LP that are nonbasic at zero force at
+#: its vertex optimum and have u.a/c below this (reduced cost above 20 % of their cost)
+#: leave before the second solve, not after :data:`~bridgeopt.solver.adding.DROP_AFTER`
+#: solves (half the dual simplex work of a coarse-started LP, docs/benchmarks.md). [-]
+FIRST_DROP_RATIO = 0.8
 
 
 class LayoutModel:
@@ -64,13 +70,17 @@ class LayoutModel:
     price : callable
         ``price(data, in_lp, duals) -> (pair, sense, ratio) or None``
         (:func:`bridgeopt.solver.lp.price_candidates`).
+    first_drop : bool
+        After the first solve (interior point with crossover, with ``prune``), the
+        nonbasic zero-force columns with u.a/c below :data:`FIRST_DROP_RATIO` leave at
+        once (for a first LP seeded generously, e.g. from a coarser grid).
     """
 
     #: Columns with a force above this fraction of the largest are in use. [-]
     active = ACTIVE_FORCE
 
     def __init__(self, data, *, ipm: bool, prune: bool = True, columns: Callable,
-                 price: Callable):
+                 price: Callable, first_drop: bool = False):
         self.data = data
         self.columns, self.pricer = columns, price
         n2 = 2 * len(data.xz)
@@ -84,6 +94,8 @@ class LayoutModel:
         self.in_lp = np.zeros((len(data.a), 2), dtype=bool)
         self.pair = np.zeros(0, dtype=np.int64)
         self.sense = np.zeros(0, dtype=np.int8)
+        #: Cost of each member column, in LP order. [-]
+        self.cost = np.zeros(0)
         self.pruner = Pruner(len(data.a), 2) if prune else None
         #: Whether the solves give a vertex (basic) solution.
         self.vertex = not ipm
@@ -91,6 +103,7 @@ class LayoutModel:
         self.dropped = 0
         #: Solve the first LP by interior point with crossover (then warm dual simplex).
         self.first_ipm = not ipm and FIRST_IPM
+        self.first_drop = first_drop and self.first_ipm and prune
         self.solves = 0
 
     def add(self, pair: np.ndarray, group: np.ndarray) -> None:
@@ -110,6 +123,7 @@ class LayoutModel:
                 add_columns(self.h, columns)
                 self.pair = np.concatenate([self.pair, kept])
                 self.sense = np.concatenate([self.sense, np.full(len(kept), s, dtype=np.int8)])
+                self.cost = np.concatenate([self.cost, columns.cost])
                 if self.pruner is not None:
                     self.pruner.added(len(kept))
 
@@ -131,6 +145,7 @@ class LayoutModel:
             self.h.deleteCols(len(where), (where + self.nfix).astype(np.int32))
             self.in_lp[gone] = False
             self.pair, self.sense = self.pair[~drop], self.sense[~drop]
+            self.cost = self.cost[~drop]
             self.dropped += len(where)
         return gone
 
@@ -142,8 +157,22 @@ class LayoutModel:
         status = solve_with_removal(self)
         if self.pruner is not None and status == "optimal":
             force = self.forces()
-            self.pruner.solved(force <= ZERO_FORCE * force.max(initial=0.0))
+            at_zero = force <= ZERO_FORCE * force.max(initial=0.0)
+            self.pruner.solved(at_zero)
+            if self.first_drop and self.solves == 1:
+                self.pruner.due_now(at_zero & self._far_from_entering())
         return status
+
+    def _far_from_entering(self) -> np.ndarray:
+        """Member columns (LP order) nonbasic with u.a/c below :data:`FIRST_DROP_RATIO`."""
+        basis = self.h.getBasis()
+        if not basis.valid:
+            return np.zeros(len(self.pair), dtype=bool)
+        status = np.array([int(c) for c in basis.col_status[self.nfix:]], dtype=np.int64)
+        reduced = np.asarray(self.h.getSolution().col_dual)[self.nfix:]
+        # u.a / c = 1 - d / c (every member column costs c > 0)
+        return ((status != int(highspy.HighsBasisStatus.kBasic))
+                & (reduced > (1.0 - FIRST_DROP_RATIO) * self.cost))
 
     def run_once(self) -> str:
         """One HiGHS solve of the LP as it stands: ``"optimal"`` or HiGHS's words."""
