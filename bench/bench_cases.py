@@ -9,6 +9,7 @@ Usage::
 
     python bench/bench_cases.py              # 20 and 30 divisions, 1, 2 and 3 cases
     python bench/bench_cases.py --quick      # 20 divisions only
+    python bench/bench_cases.py --divisions 30 --cases 3 --repeat 3   # issue 12's target alone
 
 Prints a Markdown table.
 """
@@ -44,13 +45,17 @@ print(json.dumps(dict(divisions=n, cases=k, seconds=dt, rounds=d.stats["rounds"]
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--quick", action="store_true")
+    ap.add_argument("--divisions", type=int, nargs="+", help="grid sizes (default 20 30)")
+    ap.add_argument("--cases", type=int, nargs="+", choices=(1, 2, 3), default=(1, 2, 3),
+                    help="numbers of load cases (default 1 2 3)")
+    ap.add_argument("--repeat", type=int, default=1, help="runs of each, one process each")
     args = ap.parse_args()
-    sizes = (20,) if args.quick else (20, 30)
+    sizes = args.divisions or ((20,) if args.quick else (20, 30))
     print("| divisions | cases | time [s] | LP rounds | members in LP | candidates | "
           "peak memory [MB] | volume [m3] | cost [EUR] | members governed |")
     print("|---|---|---|---|---|---|---|---|---|---|")
     for n in sizes:
-        for k in (1, 2, 3):
+        for k in [k for k in args.cases for _ in range(args.repeat)]:
             out = subprocess.run([sys.executable, "-c", RUN, str(n), str(k)], check=True,
                                  capture_output=True, text=True).stdout
             r = json.loads(out.strip().splitlines()[-1])

@@ -272,7 +272,8 @@ def _all_groups(pair: np.ndarray, n_groups: int) -> tuple[np.ndarray, np.ndarray
 def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = True,
                 batch: int | None = None, gap_tol: float | None = None,
                 max_rounds: int = 500, seed: np.ndarray | None = None,
-                seed_groups: np.ndarray | None = None, seed_reach: int = 1) -> AddingResult:
+                seed_groups: np.ndarray | None = None, seed_reach: int = 1,
+                min_batch: int = 1000) -> AddingResult:
     """Run member adding (module docstring) on ``model``.
 
     Parameters
@@ -298,6 +299,9 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
     seed_reach : int
         With a seed, the first LP also holds the pairs of reach at most this
         (0: the seed alone; widened to 1, 2, 4, ... while it has no optimum). [-]
+    min_batch : int
+        Without ``batch``: most members added per round max(min_batch, 10 % of those
+        in the LP). [-]
 
     Returns
     -------
@@ -329,7 +333,7 @@ def add_members(model: MemberModel, reach: np.ndarray, *, member_adding: bool = 
         gap = proven_gap(float(ratio.max()))
         if gap_tol is not None and gap <= gap_tol:
             break
-        top = strongest(ratio, batch or max(1000, int(0.1 * model.in_lp.sum())))
+        top = strongest(ratio, batch or max(min_batch, int(0.1 * model.in_lp.sum())))
         if time.perf_counter() - t0 > PROGRESS_AFTER:
             progress.info("member adding: round %d, %d members in the LP, %d more to add, "
                           "proven gap %.1e, %.0f s", rounds, int(model.in_lp.sum()), len(top),

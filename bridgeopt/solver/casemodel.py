@@ -12,7 +12,9 @@ point with crossover, to a basis.  Members that stayed at zero area for
 nonbasic, leave the instance (``deleteRows`` of their stress rows, whose
 slacks are then basic, and ``deleteCols``), so the basis stays valid
 (:class:`~bridgeopt.solver.adding.Pruner`, with the same safety nets as the
-single-case :class:`~bridgeopt.solver.lpmodel.LayoutModel`).
+single-case :class:`~bridgeopt.solver.lpmodel.LayoutModel`).  Members at zero
+area at the crossover are due to leave at the first warm solve (:data:`EARLY_DROP`):
+those with every column nonbasic leave without changing the basis or the duals.
 
 A stress row that only repeats a bound is left out: a tension-only group has
 q_k >= 0 as the force column's lower bound (its row q_k + 0 a >= 0 says the
@@ -53,6 +55,8 @@ __all__ = ["SWITCH", "WARM_BASIS", "ZERO_AREA", "CaseModel", "geometry"]
 ZERO_AREA = 1e-9
 #: New force columns enter the basis in place of a stress row slack each.
 WARM_BASIS = True
+#: Members at zero area at the crossover are due to leave at the next solve.
+EARLY_DROP = True
 #: Interior point rounds go over to a vertex (crossover from their last solution) and
 #: warm dual simplex once a round adds at most this fraction of the members. [-]
 SWITCH = 0.1
@@ -237,6 +241,11 @@ class CaseModel:
             self.pruner = Pruner(*self.in_lp.shape)
             self.pruner.added(len(self.pair))
         self.out = self._result() if status == "optimal" else None
+        if self.pruner is not None and self.out is not None and EARLY_DROP:
+            # at zero area in the interior rounds and at the vertex: due to leave at the
+            # next solve (those with every column nonbasic: same basis, same duals)
+            area = self.out["area"]
+            self.pruner.zero[area <= ZERO_AREA * area.max(initial=0.0)] = self.pruner.after
         return status
 
     def _swap(self, cols: np.ndarray, rows: np.ndarray, upper: np.ndarray) -> None:

@@ -124,6 +124,11 @@ PRUNE = True
 ENVELOPE_SEED = True
 #: Lattice reach of the pairs in the first LP besides the seed.
 START_REACH = 1
+#: Fewest members added per round without ``batch`` (the default is max(this, 10 % of
+#: those in the LP)): at 30 divisions and 3 cases, 500 instead of the single-case 1000
+#: keeps the second interior point LP smaller and the warm simplex rounds shorter
+#: (docs/benchmarks.md). [-]
+MIN_BATCH = 500
 
 
 @dataclass(frozen=True)
@@ -233,7 +238,8 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
         solves the whole ground structure in one LP (at most
         :data:`MAX_FULL_COLUMNS` columns).
     batch : int, optional
-        Most members added per round (default max(1000, 10 % of those in the LP)). [-]
+        Most members added per round (default max(:data:`MIN_BATCH`, 10 % of those in
+        the LP)). [-]
 
     Returns
     -------
@@ -272,7 +278,7 @@ def optimize_cases(study: CaseStudy, *, member_adding: bool = True,
     seed = _envelope(study) if member_adding and ENVELOPE_SEED else None
     result = add_members(model, data.reach, member_adding=member_adding, batch=batch,
                          gap_tol=GAP_TOL, max_rounds=MAX_ROUNDS, seed=seed,
-                         seed_reach=START_REACH)
+                         seed_reach=START_REACH, min_batch=MIN_BATCH)
     status, rounds, gap = result.status, result.rounds, result.gap
     if status == "optimal" and not model.vertex:
         before = model.out["objective"] * (1.0 - gap)   # proven lower bound of the rounds
