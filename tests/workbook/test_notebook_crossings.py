@@ -4,6 +4,7 @@ reference it is set against, and names every series on other supports with its c
 tests (``notebook_runs``)."""
 
 import json
+
 import pytest
 
 pytest.importorskip("nbclient")
