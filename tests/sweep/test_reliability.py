@@ -135,7 +135,9 @@ def test_a_killed_sweep_leaves_no_worker(tmp_path, sig):
 
 
 def test_resume_after_interrupt_gives_the_clean_run_table(tmp_path):
-    path = _sweep_file(tmp_path, spans=4)
+    # 12 cases: about 5 s of solving left after the first 2 rows, against a 20 ms poll
+    # before the Ctrl-C (_wait_for_rows fails if the run ended first); solved twice here
+    path = _sweep_file(tmp_path, spans=2)
     sweep = load_sweep(path)
     run_sweep(sweep, tmp_path / "clean", jobs=2)
     proc = _start(path, tmp_path / "cut")
@@ -151,7 +153,8 @@ def test_resume_after_interrupt_gives_the_clean_run_table(tmp_path):
 
 def test_a_killed_worker_fails_no_innocent_case(tmp_path):
     """SIGKILL one worker mid-run: every case still ends ok, and the sweep exits 0."""
-    proc = _start(_sweep_file(tmp_path, spans=4), tmp_path / "out")
+    # 12 cases: 11 or so still to run on the pool after the killed worker, every one checked
+    proc = _start(_sweep_file(tmp_path, spans=2), tmp_path / "out")
     workers = _wait_for_rows(proc, tmp_path / "out", rows=1)
     os.kill(min(workers), signal.SIGKILL)
     try:
@@ -160,7 +163,7 @@ def test_a_killed_worker_fails_no_innocent_case(tmp_path):
         _clean_up(proc, workers)
     assert proc.returncode == 0, err
     rows = pd.read_csv(tmp_path / "out" / "results.csv")
-    assert len(rows) == 24 and (rows["status"] == "ok").all()
+    assert len(rows) == 12 and (rows["status"] == "ok").all()    # 2 spans x 2 grids x 3 forms
 
 
 def test_damaged_journal_rows_are_run_again_and_reported(tmp_path, caplog):

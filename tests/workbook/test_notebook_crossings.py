@@ -1,11 +1,10 @@
 """Every study notebook, run at its defaults (fast variant), never shows a form below the
 reference it is set against, and names every series on other supports with its crossing
-(issue 11: "charts and tables never mislead")."""
+(issue 11: "charts and tables never mislead").  The run is shared with the other notebook
+tests (``notebook_runs``)."""
 
 import json
-from pathlib import Path
 
-import nbformat
 import pytest
 
 pytest.importorskip("nbclient")
@@ -13,10 +12,8 @@ pytest.importorskip("ipywidgets")
 pytest.importorskip("plotly")
 
 from bridgeopt import study  # noqa: E402
-from bridgeopt.workbook.report import execute_notebook  # noqa: E402
 
-STUDIES = Path(__file__).resolve().parents[2] / "studies"
-FAST = {"BRIDGEOPT_FAST": "1"}
+from .notebook_runs import register_probe, run  # noqa: E402
 
 #: The table each notebook shows its options in (a name in the notebook's namespace).
 TABLES = {"span_study": "table", "height_study": "table", "pylon_study": "table",
@@ -28,20 +25,13 @@ print("TABLE" + {name}.to_json(orient="records"))
 """
 
 
-def _run(stem):
-    nb = nbformat.read(STUDIES / f"{stem}.ipynb", as_version=4)
-    nb.cells.append(nbformat.v4.new_code_cell(PROBE.format(name=TABLES[stem])))
-    tmp = STUDIES / f".test_crossings_{stem}.ipynb"
-    nbformat.write(nb, tmp)
-    try:
-        return execute_notebook(tmp, report=False, timeout=180, extra_env=FAST)
-    finally:
-        tmp.unlink()
+for _stem, _table in TABLES.items():
+    register_probe(_stem, "crossings", PROBE.format(name=_table))
 
 
-def _trace_names(nb):
+def _trace_names(cells):
     names = []
-    for cell in nb.cells:
+    for cell in cells:
         for out in cell.get("outputs", []):
             fig = out.get("data", {}).get("application/vnd.plotly.v1+json")
             if fig:
@@ -51,13 +41,12 @@ def _trace_names(nb):
 
 @pytest.mark.parametrize("stem", sorted(TABLES))
 def test_no_form_below_its_reference_and_other_crossings_named(stem):
-    nb = _run(stem)
-    text = "".join(o.get("text", "") for o in nb.cells[-1].outputs if o.output_type == "stream")
-    rows = json.loads(text.split("TABLE", 1)[1])
+    done = run(stem)  # per-cell limit 180 s, the shared run's own
+    rows = json.loads(done.text("crossings").split("TABLE", 1)[1])
     assert rows, stem
     solved = [r for r in rows if r["status"] == "optimal"]
     assert any(r["option"] != study.REFERENCE for r in solved), stem
-    names = _trace_names(nb)
+    names = _trace_names(done.upto("crossings"))  # not the explorer's later slider moves
     for r in solved:
         # the reference it is shown against: its own crossing's optimum
         assert r["volume_m3"] >= r["reference_volume_m3"] * (1 - 1e-6), (stem, r["series"])

@@ -1,7 +1,8 @@
 """One number per study notebook, at its defaults (the BRIDGEOPT_FAST=1 variant tests run).
 
 Each notebook runs in a kernel with one cell appended that prints its result table as
-JSON; the numbers are then checked here.  Where a check value comes from outside the
+JSON (the run shared with the other notebook tests, ``notebook_runs``); the numbers are
+then checked here.  Where a check value comes from outside the
 program it says so beside the check; otherwise the value is an independent
 recomputation: the same scenario solved here, in this process, with the package's
 reference solve (``study.solve_reference``), apart from the notebook and its sweep code.
@@ -15,7 +16,6 @@ import math
 import tomllib
 from pathlib import Path
 
-import nbformat
 import pytest
 
 pytest.importorskip("nbclient")
@@ -23,12 +23,12 @@ pytest.importorskip("ipywidgets")
 pytest.importorskip("plotly")
 
 from bridgeopt import PRESETS, BridgeScenario, study  # noqa: E402
-from bridgeopt.workbook.report import execute_notebook  # noqa: E402
+
+from .notebook_runs import register_probe, run  # noqa: E402
 
 pytestmark = pytest.mark.slow  # each test runs a notebook in a kernel
 
 STUDIES = Path(__file__).resolve().parents[2] / "studies"
-FAST = {"BRIDGEOPT_FAST": "1"}
 REFERENCE = "reference optimum"
 STEEL = PRESETS["steel"]
 #: S355 steel: 355 MPa design strength (EN 10025-2, thickness up to 16 mm) and 7850 kg/m3
@@ -47,21 +47,19 @@ PROBES = {
 }
 
 
+#: Per-cell time limit of these tests' runs [s] (the shared run's limit is larger).
+LIMIT = 120
+
+for _name, _probe in PROBES.items():
+    register_probe(_name, "numbers",
+                   f'import json\nprint("PROBE" + json.dumps({_probe}, default=float))')
+
+
 def run_probe(name: str) -> dict:
     """Run ``studies/<name>.ipynb`` at its fast defaults and return what its probe printed."""
-    path = STUDIES / f"{name}.ipynb"
-    nb = nbformat.read(path, as_version=4)
-    nb.cells.append(nbformat.v4.new_code_cell(
-        f'import json\nprint("PROBE" + json.dumps({PROBES[name]}, default=float))'))
-    tmp = path.with_name(f".numbers_{path.name}")
-    nbformat.write(nb, tmp)
-    try:
-        done = execute_notebook(tmp, report=False, timeout=120, extra_env=FAST)
-    finally:
-        tmp.unlink()
-    text = "".join(o.get("text", "") for o in done.cells[-1].outputs
-                   if o.output_type == "stream")
-    return json.loads(text.split("PROBE", 1)[1])
+    done = run(name)
+    assert done.slowest("numbers") < LIMIT
+    return json.loads(done.text("numbers").split("PROBE", 1)[1])
 
 
 def bridge(span: float, rise: float, depth: float, divisions: int) -> BridgeScenario:

@@ -1,7 +1,8 @@
 """Study notebooks: committed clean, run headlessly, and the explorer's callbacks work in a kernel.
 
 Each notebook runs with BRIDGEOPT_FAST=1 (coarse grids, few sweep points) read by its
-``parameters`` cell, with a per-cell time limit.
+``parameters`` cell, with a per-cell time limit; the run is shared with the other notebook
+tests (``notebook_runs``: one kernel run per notebook, every test's probe cells appended).
 """
 
 import json
@@ -16,11 +17,11 @@ pytest.importorskip("plotly")
 
 from bridgeopt import PRESETS, BridgeScenario, study  # noqa: E402
 from bridgeopt.cautions import CAUTION_LINES  # noqa: E402
-from bridgeopt.workbook.report import execute_notebook  # noqa: E402
+
+from .notebook_runs import register_probe, run  # noqa: E402
 
 STUDIES = Path(__file__).resolve().parents[2] / "studies"
 NOTEBOOKS = sorted(STUDIES.glob("*.ipynb"))
-FAST = {"BRIDGEOPT_FAST": "1"}
 
 
 def test_the_five_studies_exist():
@@ -42,8 +43,12 @@ def test_committed_without_outputs_and_opening_with_question_and_cautions(path):
     assert "widgets" not in nb.metadata
 
 
-def _errors(nb):
-    return [o for c in nb.cells if c.cell_type == "code" for o in c.outputs
+#: Per-cell time limit of these tests' runs [s] (the shared run's limit is larger).
+LIMIT = 120
+
+
+def _errors(cells):
+    return [o for c in cells if c.cell_type == "code" for o in c.outputs
             if o.output_type == "error" or "bridgeopt-error" in json.dumps(o.get("data", {}))]
 
 
@@ -51,18 +56,12 @@ def _errors(nb):
 @pytest.mark.parametrize("path", [p for p in NOTEBOOKS if p.stem != "explorer"],
                          ids=lambda p: p.stem)
 def test_study_runs_headlessly(path):
-    nb = execute_notebook(path, report=False, timeout=120, extra_env=FAST)
-    assert not _errors(nb)
-    outputs = [o for c in nb.cells if c.cell_type == "code" for o in c.outputs]
+    done = run(path.stem)
+    assert done.slowest() < LIMIT
+    cells = done.own_cells  # the notebook as committed, without the other tests' probes
+    assert not _errors(cells)
+    outputs = [o for c in cells if c.cell_type == "code" for o in c.outputs]
     assert sum("application/vnd.plotly.v1+json" in o.get("data", {}) for o in outputs) >= 2
-
-
-def _appended(path, *sources):
-    nb = nbformat.read(path, as_version=4)
-    nb.cells += [nbformat.v4.new_code_cell(s) for s in sources]
-    tmp = path.with_name(f".test_{path.name}")
-    nbformat.write(nb, tmp)
-    return tmp
 
 
 PROBE = """
@@ -86,16 +85,17 @@ print("SHOWN" + json.dumps([o.get("data", {}).get("application/vnd.plotly.v1+jso
                             for o in explorer.drawing.outputs]))
 """
 
+# The slider probe changes the explorer's state: it runs after every reading probe.
+register_probe("explorer", "sliders", PROBE, changes_state=True)
+register_probe("explorer", "shown", SHOWN, changes_state=True)
+
 
 @pytest.mark.slow
 def test_explorer_sliders_resolve_redraw_and_show_errors_in_a_kernel():
-    tmp = _appended(STUDIES / "explorer.ipynb", PROBE, SHOWN)
-    try:
-        nb = execute_notebook(tmp, report=False, timeout=120, extra_env=FAST)
-    finally:
-        tmp.unlink()
-    text = "".join(o.get("text", "") for o in nb.cells[-2].outputs if o.output_type == "stream")
-    probe = json.loads(text.split("PROBE", 1)[1])
+    done = run("explorer")
+    assert done.slowest("sliders", "shown") < LIMIT
+    nb = done.nb
+    probe = json.loads(done.text("sliders").split("PROBE", 1)[1])
     before, after, bad, again = probe["before"], probe["after"], probe["bad"], probe["again"]
     assert before["error"] is None and after["error"] is None
     assert after["span"] == before["span"] + 600
@@ -114,10 +114,9 @@ def test_explorer_sliders_resolve_redraw_and_show_errors_in_a_kernel():
     # a valid input again clears the error
     assert again["error"] is None and "bridgeopt-error" not in again["message"]
     assert again["reference_volume"] != after["reference_volume"]
-    assert not _errors(nb)
+    assert not _errors(nb.cells)
     # the redrawn figure is what the output area shows: one plotly figure, the new span
-    shown = json.loads("".join(o.get("text", "") for o in nb.cells[-1].outputs
-                               if o.output_type == "stream").split("SHOWN", 1)[1])
+    shown = json.loads(done.text("shown").split("SHOWN", 1)[1])
     assert len(shown) == 1 and shown[0] is not None
     assert shown[0]["layout"]["title"]["text"].startswith(again["title"].split("<br>")[0])
     assert f"{after['span']:,.0f} m span" in shown[0]["layout"]["title"]["text"]
