@@ -16,8 +16,12 @@ import pytest
 
 from bridgeopt import PRESETS, BridgeScenario
 from bridgeopt.forms import ArchForm, CableStayedForm, SuspensionForm, solve_form
-from bridgeopt.forms.quantities import (DIMENSION_COLUMNS, DIMENSION_TABLE,
-                                        SWEEP_DIMENSION_COLUMNS, dimension_columns)
+from bridgeopt.forms.quantities import (
+    DIMENSION_COLUMNS,
+    DIMENSION_TABLE,
+    SWEEP_DIMENSION_COLUMNS,
+    dimension_columns,
+)
 from bridgeopt.sweep.cases import dimension_cells
 
 #: The geometry keys the sweep wrote as ``<key>_m`` columns before the shared table.
