@@ -29,11 +29,10 @@ import numpy as np
 
 from bridgeopt.errors import InputError
 from bridgeopt.forms.builder import deck_level
-from bridgeopt.forms.suspension import LEAN_GAP
-from bridgeopt.geometry.moves import MIN_REACH, NodeMoves
+from bridgeopt.forms.suspension import least_lean
+from bridgeopt.geometry.moves import NodeMoves
 from bridgeopt.solver.design import Design
 from bridgeopt.solver.frame import Frame
-from bridgeopt.solver.layout import scales
 
 __all__ = ["NODE_GAP", "ROUNDS", "ROUND_GAIN", "lean_continuation", "relean_moves"]
 
@@ -181,8 +180,7 @@ def lean_continuation(frame: Frame, moves: NodeMoves, best: Design,
     on_deck = np.abs(frame.nodes[ends, 1] - zd) <= 1e-9 * max(1.0, abs(zd)) + 1e-6
     deck_x = np.unique(frame.nodes[ends[on_deck], 0])
     panel = float(np.diff(deck_x).min())
-    # as the suspension form's own least lean (bridgeopt.forms.suspension)
-    gap = max(LEAN_GAP * panel, 2 * MIN_REACH * scales(frame.problem)[0])
+    gap = least_lean(frame.problem, panel)
     tower_x = deck_level(frame.problem)[0]
     for _ in range(rounds):
         if best.nodes.shape != frame.nodes.shape:
