@@ -35,13 +35,11 @@ from bench_form_ratios import crossing
 from bridgeopt import SolveError, optimize_layout
 from bridgeopt.forms import SuspensionForm, form_problem, solve_form
 from bridgeopt.forms.builder import FrameBuilder, deck_level
-from bridgeopt.geometry.moves import MIN_REACH
+from bridgeopt.forms.suspension import least_lean
 from bridgeopt.geometry.optimize import optimize_geometry
 from bridgeopt.solver.frame import size_frame
-from bridgeopt.solver.layout import scales
 
 PANELS = 15          # hangers per half span at 30 divisions
-GAP = 1e-3           # least hanger lean, as a part of the panel (as forms/suspension.py)
 
 
 def cable_of(design) -> np.ndarray:
@@ -57,7 +55,7 @@ def net(problem, cable: np.ndarray, reach: float | None, rise: float):
     b = FrameBuilder(problem)
     xs, xe, zd = deck_level(problem)
     p = (xe - xs) / PANELS
-    gap = max(GAP * p, 2 * MIN_REACH * scales(problem)[0])   # as forms/suspension.py
+    gap = least_lean(problem, p)   # as the suspension form's own
     xd = xs + p * np.arange(PANELS + 1)
     cable = cable.copy()
     for j in range(1, len(cable) - 1):   # off the deck points' verticals
@@ -130,7 +128,8 @@ def leans(span: float, values, gap: float | None) -> None:
 
     logging.disable(logging.WARNING)
     if gap is not None:
-        hangers.NODE_GAP = gap   # read by lean_continuation's default at each call
+        hangers.NODE_GAP = gap   # for the printout below
+        # solve_form calls lean_continuation with its default node_gap, bound at definition
         hangers.lean_continuation.__kwdefaults__["node_gap"] = gap
     bridge = crossing(span)
     ref = optimize_layout(form_problem(bridge, SuspensionForm()))

@@ -22,23 +22,24 @@ a cable-stayed fan, not a classic suspension bridge.
 
 from __future__ import annotations
 
+import numbers
 from collections.abc import Callable
 
 import numpy as np
 
+from bridgeopt.errors import InputError
 from bridgeopt.forms.builder import deck_level
-from bridgeopt.forms.suspension import LEAN_GAP
-from bridgeopt.geometry.moves import MIN_REACH, NodeMoves
+from bridgeopt.forms.suspension import least_lean
+from bridgeopt.geometry.moves import NodeMoves
 from bridgeopt.solver.design import Design
 from bridgeopt.solver.frame import Frame
-from bridgeopt.solver.layout import scales
 
 __all__ = ["NODE_GAP", "ROUNDS", "ROUND_GAIN", "lean_continuation", "relean_moves"]
 
 #: Least x distance from a cable node to the one nearer the tower (or the tower line),
 #: as a part of the hanger panel, in the continuation. [-]
 NODE_GAP = 0.1
-#: Most rounds of the continuation.
+#: Most rounds of the continuation. [-]
 ROUNDS = 12
 #: The continuation stops when a round gains less than this part of the volume. [-]
 ROUND_GAIN = 1e-4
@@ -46,7 +47,23 @@ ROUND_GAIN = 1e-4
 _LEAN = "hanger lean "
 
 
-def _lean_nodes(frame: Frame, moves: NodeMoves) -> list[tuple[int, int]]:
+def _number(value) -> bool:
+    """Whether ``value`` is a finite real number (not a bool)."""
+    return not isinstance(value, bool) and isinstance(value, numbers.Real) \
+        and bool(np.isfinite(value))
+
+
+def _check(*, lean: float, node_gap: float, panel: float = 1.0) -> None:
+    """Range checks of the continuation's inputs: a clear error naming the input."""
+    if not (_number(lean) and lean > 0):
+        raise InputError("lean", lean, "a number of panels > 0")
+    if not (_number(node_gap) and 0 <= node_gap < 1):
+        raise InputError("node_gap", node_gap, "a part of a panel from 0 to below 1")
+    if not (_number(panel) and panel > 0):
+        raise InputError("panel", panel, "a length > 0 m")
+
+
+def _lean_nodes(moves: NodeMoves) -> list[tuple[int, int]]:
     """(parameter, cable node) of every hanger-lean parameter of ``moves``."""
     out = []
     for j, name in enumerate(moves.names):
@@ -86,7 +103,13 @@ def relean_moves(frame: Frame, moves: NodeMoves, shift: np.ndarray, *, lean: flo
     NodeMoves
         Every bound shifted by ``shift``; each hanger-lean parameter's bounds
         re-set from the cable nodes' places in ``frame`` (0 always inside).
+
+    Raises
+    ------
+    InputError
+        ``lean`` or ``panel`` not > 0, ``node_gap`` not in [0, 1).
     """
+    _check(lean=lean, node_gap=node_gap, panel=panel)
     lower = np.minimum(moves.lower - shift, 0.0)
     upper = np.maximum(moves.upper - shift, 0.0)
     nodes = frame.nodes
@@ -94,7 +117,7 @@ def relean_moves(frame: Frame, moves: NodeMoves, shift: np.ndarray, *, lean: flo
     ends = np.unique(np.r_[frame.start[cable], frame.end[cable]])
     cable_x = np.sort(nodes[ends, 0])
     hangers = np.nonzero(frame.group == "hanger")[0]
-    for j, node in _lean_nodes(frame, moves):
+    for j, node in _lean_nodes(moves):
         x = nodes[node, 0]
         h = hangers[(frame.start[hangers] == node) | (frame.end[hangers] == node)]
         if len(h) != 1:
@@ -140,8 +163,16 @@ def lean_continuation(frame: Frame, moves: NodeMoves, best: Design,
     -------
     Design
         Never heavier than ``best``.
+
+    Raises
+    ------
+    InputError
+        ``lean`` not > 0, ``node_gap`` not in [0, 1), ``rounds`` not a whole number >= 0.
     """
-    if not _lean_nodes(frame, moves):
+    _check(lean=lean, node_gap=node_gap)
+    if isinstance(rounds, bool) or not isinstance(rounds, numbers.Integral) or rounds < 0:
+        raise InputError("rounds", rounds, "a whole number >= 0")
+    if not _lean_nodes(moves):
         return best
     hangers = frame.group == "hanger"
     ends = np.r_[frame.start[hangers], frame.end[hangers]]
@@ -149,8 +180,7 @@ def lean_continuation(frame: Frame, moves: NodeMoves, best: Design,
     on_deck = np.abs(frame.nodes[ends, 1] - zd) <= 1e-9 * max(1.0, abs(zd)) + 1e-6
     deck_x = np.unique(frame.nodes[ends[on_deck], 0])
     panel = float(np.diff(deck_x).min())
-    # as the suspension form's own least lean (bridgeopt.forms.suspension)
-    gap = max(LEAN_GAP * panel, 2 * MIN_REACH * scales(frame.problem)[0])
+    gap = least_lean(frame.problem, panel)
     tower_x = deck_level(frame.problem)[0]
     for _ in range(rounds):
         if best.nodes.shape != frame.nodes.shape:

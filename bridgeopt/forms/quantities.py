@@ -6,7 +6,8 @@ member on a mirror line is one member of the whole structure
 (:func:`on_mirror_line`).  :func:`form_geometry` and :func:`form_dimensions`
 measure a form's final dimensions (pylon height, sag, anchor heights, ratios,
 how far the anchors moved from the starting pattern); :func:`dimension_lines`
-and :func:`dimension_columns` show them in text and in study tables.
+and :func:`dimension_columns` show them in text and in study tables, from the one
+table of dimension columns :data:`DIMENSION_TABLE` (sweep rows take it all).
 """
 
 from __future__ import annotations
@@ -19,7 +20,8 @@ from bridgeopt.model.materials import GRAVITY
 from bridgeopt.solver.design import Design
 
 __all__ = ["GROUPS", "group_quantities", "on_mirror_line", "form_geometry", "form_dimensions",
-           "dimension_lines", "dimension_columns", "DIMENSION_COLUMNS"]
+           "dimension_lines", "dimension_columns", "dimension_values", "DIMENSION_TABLE",
+           "DIMENSION_COLUMNS", "SWEEP_DIMENSION_COLUMNS"]
 
 
 #: Element groups reported for each form, in report order.
@@ -169,16 +171,55 @@ def form_geometry(design: Design, form_type: str, deck_z: float) -> dict:
     return out
 
 
+#: The one table of a form's final dimensions as table columns: (column, where, key,
+#: study), ``where`` being ``"geometry"`` (:func:`form_geometry`) or ``"dimensions"``
+#: (:func:`form_dimensions`).  The study tables take the rows with ``study`` True
+#: (:data:`DIMENSION_COLUMNS`); sweep rows take every row (:data:`SWEEP_DIMENSION_COLUMNS`,
+#: the per-stay lists as JSON text there).  Units in the names: ``_m`` metres, else [-].
+DIMENSION_TABLE = (("pylon_height_m", "geometry", "pylon_height", True),
+                   ("span_to_height", "dimensions", "span_to_height", True),
+                   ("anchor_move_largest_m", "dimensions", "anchor_move_largest_m", True),
+                   ("anchor_move_mean_m", "dimensions", "anchor_move_mean_m", False),
+                   ("deck_point_move_largest_m", "dimensions", "deck_point_move_largest_m",
+                    False),
+                   ("stay_end_move_largest_m", "dimensions", "stay_end_move_largest_m", False),
+                   ("stay_deck_x_m", "dimensions", "stay_deck_x_m", False),
+                   ("anchor_heights_m", "dimensions", "anchor_heights_m", False),
+                   ("start_pattern", "dimensions", "start_pattern", False),
+                   ("tower_height_m", "geometry", "tower_height", True),
+                   ("sag_m", "geometry", "sag", True),
+                   ("sag_ratio", "dimensions", "sag_ratio", True),
+                   ("span_to_sag", "dimensions", "span_to_sag", True),
+                   ("rise_m", "geometry", "rise", True),
+                   ("rise_ratio", "dimensions", "rise_ratio", True),
+                   ("span_to_rise", "dimensions", "span_to_rise", False),
+                   ("deck_panel_m", "geometry", "deck_panel", False))
 #: Study-table columns of a form's final dimensions: (column, where, key). [m or -]
-DIMENSION_COLUMNS = (("pylon_height_m", "geometry", "pylon_height"),
-                     ("span_to_height", "dimensions", "span_to_height"),
-                     ("anchor_move_largest_m", "dimensions", "anchor_move_largest_m"),
-                     ("tower_height_m", "geometry", "tower_height"),
-                     ("sag_m", "geometry", "sag"),
-                     ("sag_ratio", "dimensions", "sag_ratio"),
-                     ("span_to_sag", "dimensions", "span_to_sag"),
-                     ("rise_m", "geometry", "rise"),
-                     ("rise_ratio", "dimensions", "rise_ratio"))
+DIMENSION_COLUMNS = tuple((col, where, key) for col, where, key, study in DIMENSION_TABLE
+                          if study)
+#: Sweep-row columns of a form's final dimensions: every row of :data:`DIMENSION_TABLE`.
+SWEEP_DIMENSION_COLUMNS = tuple(row[:3] for row in DIMENSION_TABLE)
+
+
+def dimension_values(form: dict, columns=DIMENSION_COLUMNS) -> dict:
+    """The values of ``columns`` a form has, as they are: ``{column: value}``.
+
+    Parameters
+    ----------
+    form : dict
+        ``{"geometry": ..., "dimensions": ...}`` (a form design's ``stats["form"]``,
+        or :class:`FormResult`'s two dicts); a missing part gives no columns.
+    columns : sequence of (column, where, key)
+        :data:`DIMENSION_COLUMNS` or :data:`SWEEP_DIMENSION_COLUMNS`.
+
+    Returns
+    -------
+    dict
+        In ``columns`` order; lengths in m, ratios dimensionless, per-stay lists
+        and texts as the form gives them.
+    """
+    return {col: form[where][key] for col, where, key in columns
+            if key in (form.get(where) or {})}
 
 
 def dimension_columns(design: Design | None) -> dict:
@@ -199,8 +240,7 @@ def dimension_columns(design: Design | None) -> dict:
     form = getattr(design, "stats", {}).get("form") if design is not None else None
     if not isinstance(form, dict):
         return {}
-    return {col: float(form[where][key]) for col, where, key in DIMENSION_COLUMNS
-            if key in form.get(where, {})}
+    return {col: float(v) for col, v in dimension_values(form, DIMENSION_COLUMNS).items()}
 
 
 def dimension_lines(dimensions: dict) -> list[str]:

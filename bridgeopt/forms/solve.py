@@ -274,6 +274,10 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
             value = form_geometry(best, spec.type, deck_level(problem)[2])
             frame, moves = build_form(bridge, spec, problem, start=value)
     best = _polish(frame, moves, best, spec.type)
+    if isinstance(spec, SuspensionForm) and spec.shape == "free" and spec.hanger_lean > 1.0:
+        # a free shape from the start: its lean box is already wide, the moves stall there;
+        # the continuation goes on from where they stopped (hangers.py)
+        best = _lean_continued(frame, moves, best, spec)
     # a forked pylon's anchors are measured from the stays the LP chose at the start
     stage1 = start if getattr(spec, "pylon", None) == "forked" else best
     free = None
@@ -297,9 +301,14 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
             return best, stage1
         best = _polish(frame, moves, best, spec.type)
         if getattr(spec, "hanger_lean", 0.0) > 1.0:
-            best = lean_continuation(frame, moves, best, lambda f, m, d: _polish(
-                f, m, d, spec.type), lean=spec.hanger_lean)
+            best = _lean_continued(frame, moves, best, spec)
     return best, stage1
+
+
+def _lean_continued(frame, moves, best: Design, spec: SuspensionForm) -> Design:
+    """:func:`~bridgeopt.forms.hangers.lean_continuation` of a suspension form's free stage."""
+    return lean_continuation(frame, moves, best, lambda f, m, d: _polish(f, m, d, spec.type),
+                             lean=spec.hanger_lean)
 
 
 def solve_form(bridge: BridgeScenario, spec: FormSpec, *, optimize: bool = True,

@@ -195,7 +195,8 @@ class SuspensionForm:
         cable node may move from above its deck point towards the tower
         (inclined hangers; the deck points stay on the grid); 0 keeps the
         hangers vertical.  Above 1 the free stage starts from the one-panel
-        optimum and continues round by round (:mod:`bridgeopt.forms.hangers`);
+        optimum and continues round by round (:mod:`bridgeopt.forms.hangers`;
+        with ``shape = "free"`` the continuation starts from the full box's moves);
         the hangers nearest the tower then act as stays from its top (a hybrid
         with a cable-stayed fan). [-]
     tower_legs : int

@@ -23,7 +23,7 @@ from bridgeopt.forms.builder import FrameBuilder, deck_level
 from bridgeopt.geometry.moves import MIN_REACH
 from bridgeopt.solver.layout import scales
 
-__all__ = ["suspension_frame", "parabola", "LEAN_START", "LEAN_GAP"]
+__all__ = ["suspension_frame", "parabola", "least_lean", "LEAN_START", "LEAN_GAP"]
 
 #: Starting lean of an inclined hanger: its cable node's offset towards the tower from its
 #: deck point, as a part of the panel (small, since the start is the vertical-hanger
@@ -32,6 +32,28 @@ LEAN_START = 0.002
 #: Least lean of an inclined hanger, and least distance of a cable node from the tower
 #: line, as a part of the panel (no hanger turns vertical). [-]
 LEAN_GAP = 0.001
+
+
+def least_lean(problem, panel: float) -> float:
+    """Least lean of an inclined hanger, and least x distance of a cable node from the tower. [m]
+
+    :data:`LEAN_GAP` of the panel, or twice the least reach the node moves accept for an
+    inclined member (:data:`~bridgeopt.geometry.moves.MIN_REACH` of the problem's length
+    scale), if more.
+
+    Parameters
+    ----------
+    problem : Problem
+        The bridge problem (its length scale). [m]
+    panel : float
+        Hanger spacing along the deck. [m]
+
+    Returns
+    -------
+    float
+        [m]
+    """
+    return max(LEAN_GAP * panel, 2 * MIN_REACH * scales(problem)[0])
 
 
 def parabola(t) -> np.ndarray:
@@ -113,8 +135,7 @@ def suspension_frame(problem, *, panels: int, tower: float, sag: float, shape: s
     if not (np.isfinite(lean) and lean >= 0):
         raise ValueError(f"lean must be a number of panels >= 0, not {lean!r}")
     panel = (xe - xs) / panels
-    # twice the least reach the node moves accept for an inclined member, at least
-    gap = max(LEAN_GAP * panel, 2 * MIN_REACH * scales(problem)[0])
+    gap = least_lean(problem, panel)
     start = max(LEAN_START * panel, 2 * gap)
     for j, (xi, zi) in enumerate(zip(x[1:], cable_z[1:]), start=1):
         deck = b.node(xi, zd)

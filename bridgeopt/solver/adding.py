@@ -191,7 +191,8 @@ class Pruner:
         """Make the members ``mask`` (LP order) due to leave at the next :meth:`pick`.
 
         For members already known to be far from entering (e.g. a large reduced cost
-        at a vertex optimum); :meth:`pick` still takes only removable ones, at most once.
+        at a vertex optimum); :meth:`pick` still takes only the removable (nonbasic) ones,
+        and a member removed once and brought back is never removed again.
 
         Parameters
         ----------

@@ -40,9 +40,10 @@ ZERO_FORCE = 1e-9
 #: to a basis, then re-solve by warm dual simplex.
 FIRST_IPM = True
 #: With ``first_drop``, the columns of the first LP that are nonbasic at zero force at
-#: its vertex optimum and have u.a/c below this (reduced cost above 20 % of their cost)
-#: leave before the second solve, not after :data:`~bridgeopt.solver.adding.DROP_AFTER`
-#: solves (half the dual simplex work of a coarse-started LP, docs/benchmarks.md). [-]
+#: its vertex optimum and have u.a/c below this (reduced cost d above (1 - this) times
+#: their cost c, as u.a/c = 1 - d/c) leave before the second solve, not after
+#: :data:`~bridgeopt.solver.adding.DROP_AFTER` solves (half the dual simplex work of a
+#: coarse-started LP, docs/benchmarks.md). [-]
 FIRST_DROP_RATIO = 0.8
 
 

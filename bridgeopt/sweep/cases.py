@@ -20,6 +20,7 @@ from bridgeopt.errors import SolveError
 from bridgeopt.study.crossings import crossing_name
 from bridgeopt.files.scenario import Scenario, parse_scenario
 from bridgeopt.forms import FormResult, ReferenceForm, form_problem
+from bridgeopt.forms.quantities import SWEEP_DIMENSION_COLUMNS, dimension_values
 from bridgeopt.solver.design import Design
 from bridgeopt.solver.multicase import single_case_reference
 from bridgeopt.study.solve import CASE_STATUSES, case_status, form_reference, solve_scenario
@@ -39,29 +40,37 @@ RESULT_COLUMNS = {
     "members": "members in the design (one model) [-]",
     "seconds": "wall time of the case's own solve, in its worker [s]",
 }
-#: Main dimensions of a solved form, as extra columns [m].
-DIMENSIONS = ("pylon_height", "tower_height", "sag", "rise", "deck_panel")
 #: Statuses of a case's row (defined with the solve, :data:`bridgeopt.study.solve.CASE_STATUSES`).
 STATUSES = CASE_STATUSES
 
 
-def dimension_cells(dimensions: Mapping[str, Any]) -> dict[str, Any]:
-    """A form's final ratios and per-stay dimensions as sweep-row cells.
+def dimension_cells(dimensions: Mapping[str, Any],
+                    geometry: Mapping[str, Any] | None = None) -> dict[str, Any]:
+    """A form's final dimensions as sweep-row cells, by the one table of dimension columns.
+
+    The columns are :data:`~bridgeopt.forms.quantities.SWEEP_DIMENSION_COLUMNS`: the
+    study table's and a sweep-only part of the same table (the deck panel, the other
+    anchor moves, ``span_to_rise``, the start pattern and the per-stay lists).
 
     Parameters
     ----------
     dimensions : mapping
         :attr:`~bridgeopt.forms.solve.FormResult.dimensions` (``span_to_height``,
         ``anchor_move_largest_m``, ``anchor_heights_m`` ...).
+    geometry : mapping, optional
+        :attr:`~bridgeopt.forms.solve.FormResult.geometry` (``pylon_height``,
+        ``sag``, ``deck_panel`` ...) [m]; its columns get ``_m`` names.
 
     Returns
     -------
     dict
         Numbers as floats (their unit in their name: ``_m`` metres, ratios [-]),
-        lists (one value per stay) as JSON text, texts as they are.
+        lists (one value per stay) as JSON text, texts as they are; values of
+        any other kind (a flag) are left out.
     """
+    form = {"geometry": geometry or {}, "dimensions": dimensions}
     cells: dict[str, Any] = {}
-    for key, value in dimensions.items():
+    for key, value in dimension_values(form, SWEEP_DIMENSION_COLUMNS).items():
         if isinstance(value, bool):
             continue
         if isinstance(value, numbers.Real):
@@ -154,10 +163,7 @@ def _ok_row(scenario: Scenario, design: Design, reference_volume: float,
            "normalised_volume": bridge.normalised_volume(design.volume) if bridge else math.nan,
            "members": len(design.members), "seconds": seconds}
     if form is not None:
-        for name in DIMENSIONS:
-            if name in form.geometry:
-                row[f"{name}_m"] = form.geometry[name]
-        row.update(dimension_cells(form.dimensions))
+        row.update(dimension_cells(form.dimensions, form.geometry))
         if bridge is not None:  # a form on other supports is its own crossing: say which
             row["reference_crossing"] = crossing_name(
                 getattr(form.reference, "problem", None), bridge.to_problem())
