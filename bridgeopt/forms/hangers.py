@@ -22,45 +22,43 @@ a cable-stayed fan, not a classic suspension bridge.
 
 from __future__ import annotations
 
-import numbers
 from collections.abc import Callable
 
 import numpy as np
 
-from bridgeopt.errors import InputError
 from bridgeopt.forms.builder import deck_level
-from bridgeopt.forms.suspension import least_lean
+from bridgeopt.forms.specs import MAX_LEAN
+from bridgeopt.forms.suspension import LEAN_GAP, least_lean
 from bridgeopt.geometry.moves import NodeMoves
+from bridgeopt.model.limits import SPAN, checked_number, checked_whole
 from bridgeopt.solver.design import Design
 from bridgeopt.solver.frame import Frame
 
-__all__ = ["NODE_GAP", "ROUNDS", "ROUND_GAIN", "lean_continuation", "relean_moves"]
+__all__ = ["MAX_ROUNDS", "NODE_GAP", "NODE_GAP_MAX", "PANEL", "ROUNDS", "ROUND_GAIN",
+           "lean_continuation", "relean_moves"]
 
 #: Least x distance from a cable node to the one nearer the tower (or the tower line),
 #: as a part of the hanger panel, in the continuation. [-]
 NODE_GAP = 0.1
+#: Largest ``node_gap`` accepted: short of a whole panel, so the nodes can still lean. [-]
+NODE_GAP_MAX = 0.99
+#: Hanger panel lengths accepted (from a millimetre to the longest span). [m]
+PANEL = (1e-3, SPAN[1])
 #: Most rounds of the continuation. [-]
 ROUNDS = 12
+#: Most rounds accepted as an input. [-]
+MAX_ROUNDS = 100
 #: The continuation stops when a round gains less than this part of the volume. [-]
 ROUND_GAIN = 1e-4
 
 _LEAN = "hanger lean "
 
 
-def _number(value) -> bool:
-    """Whether ``value`` is a finite real number (not a bool)."""
-    return not isinstance(value, bool) and isinstance(value, numbers.Real) \
-        and bool(np.isfinite(value))
-
-
 def _check(*, lean: float, node_gap: float, panel: float = 1.0) -> None:
     """Range checks of the continuation's inputs: a clear error naming the input."""
-    if not (_number(lean) and lean > 0):
-        raise InputError("lean", lean, "a number of panels > 0")
-    if not (_number(node_gap) and 0 <= node_gap < 1):
-        raise InputError("node_gap", node_gap, "a part of a panel from 0 to below 1")
-    if not (_number(panel) and panel > 0):
-        raise InputError("panel", panel, "a length > 0 m")
+    checked_number("lean", lean, low=LEAN_GAP, high=MAX_LEAN, unit="panels")
+    checked_number("node_gap", node_gap, low=0.0, high=NODE_GAP_MAX, unit="panels")
+    checked_number("panel", panel, low=PANEL[0], high=PANEL[1], unit="m")
 
 
 def _lean_nodes(moves: NodeMoves) -> list[tuple[int, int]]:
@@ -88,7 +86,7 @@ def relean_moves(frame: Frame, moves: NodeMoves, shift: np.ndarray, *, lean: flo
         The parameters' move from ``moves``' origin to ``frame``'s nodes. [m]
     lean : float
         Largest lean of a hanger: its cable node's offset from its deck point's
-        vertical towards the tower, in panels (> 0). [-]
+        vertical towards the tower, in panels (LEAN_GAP to MAX_LEAN). [-]
     panel : float
         Hanger spacing along the deck. [m]
     gap : float
@@ -107,7 +105,9 @@ def relean_moves(frame: Frame, moves: NodeMoves, shift: np.ndarray, *, lean: flo
     Raises
     ------
     InputError
-        ``lean`` or ``panel`` not > 0, ``node_gap`` not in [0, 1).
+        ``lean`` not from :data:`~bridgeopt.forms.suspension.LEAN_GAP` to
+        :data:`~bridgeopt.forms.specs.MAX_LEAN` panels, ``node_gap`` not from 0 to
+        :data:`NODE_GAP_MAX`, ``panel`` outside :data:`PANEL`.
     """
     _check(lean=lean, node_gap=node_gap, panel=panel)
     lower = np.minimum(moves.lower - shift, 0.0)
@@ -167,11 +167,11 @@ def lean_continuation(frame: Frame, moves: NodeMoves, best: Design,
     Raises
     ------
     InputError
-        ``lean`` not > 0, ``node_gap`` not in [0, 1), ``rounds`` not a whole number >= 0.
+        ``lean`` or ``node_gap`` as :func:`relean_moves`; ``rounds`` not a whole number
+        from 0 to :data:`MAX_ROUNDS`.
     """
     _check(lean=lean, node_gap=node_gap)
-    if isinstance(rounds, bool) or not isinstance(rounds, numbers.Integral) or rounds < 0:
-        raise InputError("rounds", rounds, "a whole number >= 0")
+    checked_whole("rounds", rounds, low=0, high=MAX_ROUNDS)
     if not _lean_nodes(moves):
         return best
     hangers = frame.group == "hanger"

@@ -274,9 +274,9 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
             value = form_geometry(best, spec.type, deck_level(problem)[2])
             frame, moves = build_form(bridge, spec, problem, start=value)
     best = _polish(frame, moves, best, spec.type)
-    if isinstance(spec, SuspensionForm) and spec.shape == "free" and spec.hanger_lean > 1.0:
-        # a free shape from the start: its lean box is already wide, the moves stall there;
-        # the continuation goes on from where they stopped (hangers.py)
+    if isinstance(spec, SuspensionForm) and spec.shape == "free":
+        # a free shape from the start: a lean box past one panel is already wide, the
+        # moves stall there; the continuation goes on from where they stopped (hangers.py)
         best = _lean_continued(frame, moves, best, spec)
     # a forked pylon's anchors are measured from the stays the LP chose at the start
     stage1 = start if getattr(spec, "pylon", None) == "forked" else best
@@ -299,14 +299,15 @@ def _optimized(bridge, spec, problem, frame, moves, start: Design) -> tuple[Desi
         except InputError as err:  # pragma: no cover - the same envelope as stage 1
             log.warning("free dimensions of the %s form not optimized: %s", spec.type, err)
             return best, stage1
-        best = _polish(frame, moves, best, spec.type)
-        if getattr(spec, "hanger_lean", 0.0) > 1.0:
-            best = _lean_continued(frame, moves, best, spec)
+        best = _lean_continued(frame, moves, _polish(frame, moves, best, spec.type), spec)
     return best, stage1
 
 
-def _lean_continued(frame, moves, best: Design, spec: SuspensionForm) -> Design:
-    """:func:`~bridgeopt.forms.hangers.lean_continuation` of a suspension form's free stage."""
+def _lean_continued(frame, moves, best: Design, spec: FormSpec) -> Design:
+    """:func:`~bridgeopt.forms.hangers.lean_continuation` of a suspension form's free stage
+    when its hangers may lean past one panel; ``best`` as it is otherwise."""
+    if not (isinstance(spec, SuspensionForm) and spec.hanger_lean > 1.0):
+        return best
     return lean_continuation(frame, moves, best, lambda f, m, d: _polish(f, m, d, spec.type),
                              lean=spec.hanger_lean)
 

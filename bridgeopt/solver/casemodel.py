@@ -245,7 +245,7 @@ class CaseModel:
             # at zero area in the interior rounds and at the vertex: due to leave at the
             # next solve (those with every column nonbasic: same basis, same duals)
             area = self.out["area"]
-            self.pruner.zero[area <= ZERO_AREA * area.max(initial=0.0)] = self.pruner.after
+            self.pruner.due_now(area <= ZERO_AREA * area.max(initial=0.0))
         return status
 
     def _swap(self, cols: np.ndarray, rows: np.ndarray, upper: np.ndarray) -> None:
