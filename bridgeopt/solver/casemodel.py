@@ -41,6 +41,7 @@ from bridgeopt.solver.elements import bar_factors
 from bridgeopt.solver.highs import (
     INF,
     add_columns,
+    basic_columns,
     model_status,
     new_highs,
     node_rows,
@@ -267,12 +268,10 @@ class CaseModel:
 
         Returns the (pair, group) of the members taken out.
         """
-        basis = self.h.getBasis()
         n = len(self.pair)
-        if basis.valid:
-            status = np.array([int(c) for c in basis.col_status[self.n_react:]], dtype=np.int64)
-            basic = status == int(highspy.HighsBasisStatus.kBasic)
-            removable = np.bincount(self.col_member[basic], minlength=n) == 0
+        basic = basic_columns(self.h)
+        if basic is not None:
+            removable = np.bincount(self.col_member[basic[self.n_react:]], minlength=n) == 0
         else:
             removable = np.ones(n, dtype=bool)
         drop = self.pruner.pick(self.pair, self.group, removable)

@@ -32,7 +32,8 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = ["PHI_LIMIT", "curved_coefficients", "vertical_coefficients",
-           "element_coefficients", "bar_factors", "centreline", "sag", "SENSES"]
+           "element_coefficients", "bar_factors", "centreline", "centrelines", "sag", "sags",
+           "SENSES"]
 
 SENSES = ("tension", "compression")
 
@@ -178,12 +179,11 @@ def bar_factors(unit: np.ndarray) -> np.ndarray:
     return np.column_stack([unit[:, 0], unit[:, 1], -unit[:, 0], -unit[:, 1]])
 
 
-def _end_slope(p, q, k: float, sense: str) -> float:
-    """tan of the centreline's slope at P."""
-    lx, dz = q[0] - p[0], q[1] - p[1]
-    _, _, pzf, _, _ = curved_coefficients(np.array([lx]), np.array([dz]), k, sense)
+def _end_slopes(lx, dz, k: float, sense: str) -> np.ndarray:
+    """tan of the centreline's slope at P, for elements of projections ``lx`` > 0 and rises ``dz``."""
+    _, _, pzf, _, _ = curved_coefficients(lx, dz, k, sense)
     # P's force factor is (1, tP) for a cable and -(1, aP) for an arch: slope = pzf/pxf
-    return float(pzf[0]) if sense == "tension" else float(-pzf[0])
+    return pzf if sense == "tension" else -pzf
 
 
 def _rise_along(theta: float, x, kappa: float):
@@ -194,6 +194,82 @@ def _rise_along(theta: float, x, kappa: float):
     """
     t = kappa * np.asarray(x, dtype=float)
     return -np.log1p(-2.0 * np.sin(0.5 * t) ** 2 - np.tan(theta) * np.sin(t)) / kappa
+
+
+def _ends(p, q, k: float):
+    """(m, 2) end arrays, projections, rises and which elements are curved (k > 0, lx > 0)."""
+    p = np.atleast_2d(np.asarray(p, dtype=float))
+    q = np.atleast_2d(np.asarray(q, dtype=float))
+    lx, dz = q[:, 0] - p[:, 0], q[:, 1] - p[:, 1]
+    return p, q, lx, dz, (lx > 0.0) if k != 0.0 else np.zeros(len(p), dtype=bool)
+
+
+def centrelines(p, q, k: float, sense: str, n: int = 33) -> list[np.ndarray]:
+    """Points along the centrelines of elements of one material and sense, in one pass.
+
+    The same points as :func:`centreline` for each element (which calls this).
+
+    Parameters
+    ----------
+    p, q : (m, 2) float arrays
+        End points, each P left of its Q. [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+        Cables (tension) or arches / struts (compression).
+    n : int
+        Number of points on a curved centreline. [-]
+
+    Returns
+    -------
+    list of m float arrays
+        (n, 2) points from P to Q for each curved element, (2, 2) for a straight or
+        vertical one. [L]
+    """
+    p, q, lx, dz, curved = _ends(p, q, k)
+    out = [np.vstack([p[i], q[i]]) for i in range(len(p))]
+    c = np.flatnonzero(curved)
+    if len(c):
+        theta = np.arctan(_end_slopes(lx[c], dz[c], k, sense))
+        x = np.linspace(0.0, lx[c], n, axis=1)
+        z = p[c, 1, None] + _rise_along(theta[:, None], x, k if sense == "tension" else -k)
+        z[:, -1] = q[c, 1]
+        pts = np.stack([p[c, 0, None] + x, z], axis=2)
+        for j, i in enumerate(c):
+            out[i] = pts[j]
+    return out
+
+
+def sags(p, q, k: float, sense: str) -> np.ndarray:
+    """Largest vertical distance between each centreline and its chord, in one pass. [L]
+
+    The same values as :func:`sag` for each element (which calls this).
+
+    Parameters
+    ----------
+    p, q : (m, 2) float arrays
+        End points, each P left of its Q. [L]
+    k : float
+        rho*g/sigma, >= 0. [1/L]
+    sense : {"tension", "compression"}
+        Cables (sag below their chords) or arches (rise above them).
+
+    Returns
+    -------
+    (m,) float array
+        The sags, >= 0; zero for straight and vertical elements. [L]
+    """
+    p, q, lx, dz, curved = _ends(p, q, k)
+    out = np.zeros(len(p))
+    c = np.flatnonzero(curved)
+    if len(c):
+        lx, dz = lx[c], dz[c]
+        theta = np.arctan(_end_slopes(lx, dz, k, sense))
+        chord = np.arctan(dz / lx)
+        x = (chord - theta) / k if sense == "tension" else (theta - chord) / k
+        z = _rise_along(theta, x, k if sense == "tension" else -k)
+        out[c] = np.abs(z - dz * x / lx)
+    return out
 
 
 def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
@@ -218,16 +294,7 @@ def centreline(p, q, k: float, sense: str, n: int = 33) -> np.ndarray:
     (n, 2) float array
         Points from P to Q, or (2, 2) for a straight or vertical element. [L]
     """
-    p = np.asarray(p, dtype=float)
-    q = np.asarray(q, dtype=float)
-    lx = q[0] - p[0]
-    if k == 0.0 or lx <= 0.0:
-        return np.vstack([p, q])
-    theta = np.arctan(_end_slope(p, q, k, sense))
-    x = np.linspace(0.0, lx, n)
-    z = p[1] + _rise_along(theta, x, k if sense == "tension" else -k)
-    z[-1] = q[1]
-    return np.column_stack([p[0] + x, z])
+    return centrelines(p, q, k, sense, n)[0]
 
 
 def sag(p, q, k: float, sense: str) -> float:
@@ -250,13 +317,4 @@ def sag(p, q, k: float, sense: str) -> float:
     float
         The sag, >= 0. [L]
     """
-    p = np.asarray(p, dtype=float)
-    q = np.asarray(q, dtype=float)
-    lx, dz = q[0] - p[0], q[1] - p[1]
-    if k == 0.0 or lx <= 0.0:
-        return 0.0
-    theta = np.arctan(_end_slope(p, q, k, sense))
-    chord = np.arctan(dz / lx)
-    x = (chord - theta) / k if sense == "tension" else (theta - chord) / k
-    z = _rise_along(theta, x, k if sense == "tension" else -k)
-    return float(abs(z - dz * x / lx))
+    return float(sags(p, q, k, sense)[0])

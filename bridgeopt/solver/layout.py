@@ -18,7 +18,7 @@ from bridgeopt.solver import multilevel
 from bridgeopt.solver.adding import check_options
 from bridgeopt.solver.budget import check_fits
 from bridgeopt.solver.design import Design, Members, accepted, equilibrium_residual
-from bridgeopt.solver.elements import PHI_LIMIT, SENSES, centreline, sag
+from bridgeopt.solver.elements import PHI_LIMIT, SENSES, centrelines, sags
 from bridgeopt.errors import InputError, SolveError
 from bridgeopt.solver.ground import Grid, build_grid, candidate_pairs
 from bridgeopt.solver.lp import LPData, LPSolution, column_entries, solve_lp
@@ -304,12 +304,18 @@ def design_from_lp(problem: Problem, grid: Grid, data: LPData, sol: LPSolution,
     index[used] = np.arange(len(used))
     nodes = grid.xz[used]
     senses = np.array([SENSES[s] for s in sol.sense], dtype=object).astype(str)
-    ks = [problem.k(s) for s in senses]
     p, q = grid.xz[a], grid.xz[b]
-    curves = tuple(centreline(p[i], q[i], ks[i], senses[i]) for i in range(n_members))
-    sags = np.array([sag(p[i], q[i], ks[i], senses[i]) for i in range(n_members)])
+    curve_list: list = [None] * n_members
+    sag_of = np.zeros(n_members)
+    for s, sense in enumerate(SENSES):   # one pass per sense (one k each)
+        sel = np.flatnonzero(sol.sense == s)
+        k = problem.k(sense)
+        for i, points in zip(sel, centrelines(p[sel], q[sel], k, sense)):
+            curve_list[i] = points
+        sag_of[sel] = sags(p[sel], q[sel], k, sense)
+    curves = tuple(curve_list)
     members = Members(start=index[a], end=index[b], sense=senses, horizontal_force=horizontal,
-                      force_start=start_f, force_end=end_f, volume=volume, sag=sags,
+                      force_start=start_f, force_end=end_f, volume=volume, sag=sag_of,
                       curves=curves,
                       group=np.full(n_members, "member") if group is None else group)
     reactions = np.column_stack([index[data.fixed // 2], np.zeros(len(data.fixed)),

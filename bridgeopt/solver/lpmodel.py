@@ -18,11 +18,11 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
-import highspy
 import numpy as np
 
 from bridgeopt.solver.adding import Pruner, solve_with_removal
-from bridgeopt.solver.highs import add_columns, model_status, new_highs, unit_columns
+from bridgeopt.solver.highs import (add_columns, basic_columns, model_status, new_highs,
+                                    unit_columns)
 
 __all__ = ["LayoutModel", "vertex_solve", "VERTEX", "FIRST_IPM", "FIRST_DROP_RATIO",
            "ACTIVE_FORCE", "ZERO_FORCE"]
@@ -133,12 +133,8 @@ class LayoutModel:
 
         Returns the (pair, sense) of the deleted columns.
         """
-        basis = self.h.getBasis()
-        if basis.valid:
-            status = np.array([int(c) for c in basis.col_status[self.nfix:]], dtype=np.int64)
-            removable = status != int(highspy.HighsBasisStatus.kBasic)
-        else:
-            removable = np.ones(len(self.pair), dtype=bool)
+        basic = basic_columns(self.h)
+        removable = np.ones(len(self.pair), dtype=bool) if basic is None else ~basic[self.nfix:]
         drop = self.pruner.pick(self.pair, self.sense, removable)
         gone = self.pair[drop], self.sense[drop].astype(np.int64)
         if drop.any():
@@ -166,14 +162,12 @@ class LayoutModel:
 
     def _far_from_entering(self) -> np.ndarray:
         """Member columns (LP order) nonbasic with u.a/c below :data:`FIRST_DROP_RATIO`."""
-        basis = self.h.getBasis()
-        if not basis.valid:
+        basic = basic_columns(self.h)
+        if basic is None:
             return np.zeros(len(self.pair), dtype=bool)
-        status = np.array([int(c) for c in basis.col_status[self.nfix:]], dtype=np.int64)
         reduced = np.asarray(self.h.getSolution().col_dual)[self.nfix:]
         # u.a / c = 1 - d / c (every member column costs c > 0)
-        return ((status != int(highspy.HighsBasisStatus.kBasic))
-                & (reduced > (1.0 - FIRST_DROP_RATIO) * self.cost))
+        return ~basic[self.nfix:] & (reduced > (1.0 - FIRST_DROP_RATIO) * self.cost)
 
     def run_once(self) -> str:
         """One HiGHS solve of the LP as it stands: ``"optimal"`` or HiGHS's words."""
