@@ -251,7 +251,10 @@ def _ratios(data, lat: Lattice, u: np.ndarray, tol: float, in_lp, use_allowed: b
                 continue
             cost, px, pz, qz = (t[d, cols][None, :, None] for t in coef[s])
             with np.errstate(invalid="ignore"):
-                work = px * diff + pz * az + qz * bz
+                # in place: one array of the group's size, not five
+                work = px * diff
+                work += pz * az
+                work += qz * bz
                 bad = np.flatnonzero(work > cost * (1.0 + tol))
             if len(bad) == 0:
                 continue
