@@ -18,7 +18,7 @@ from helpers import assert_equilibrium
 
 from bridgeopt import PRESETS, BridgeScenario
 from bridgeopt.forms import SuspensionForm, solve_form
-from bridgeopt.forms import solve as form_solve
+from bridgeopt.forms import stages as form_stages
 
 LEAN = 3.0
 
@@ -29,7 +29,7 @@ def test_a_free_shape_past_one_panel_is_continued(monkeypatch):
                        material=PRESETS["steel"], arrangement="repeating", divisions=12)
     spec = SuspensionForm(shape="free", hanger_lean=LEAN)
     with monkeypatch.context() as m:
-        m.setattr(form_solve, "_lean_continued", lambda frame, moves, best, spec: best)
+        m.setattr(form_stages, "_lean_continued", lambda frame, moves, best, spec: best)
         plain = solve_form(b, spec)
     lean = solve_form(b, spec, reference=plain.reference)
     assert lean.volume <= plain.volume * (1 + 1e-9)
