@@ -65,7 +65,10 @@ def parse_material(raw: object, label: str, *, for_compression: bool = False,
     name = string(f"{label}.name", raw["name"]) if "name" in raw else (
         base.name if base else "custom")
     pa = "a number > 0 Pa"
-    positive = (lambda v: v > 0)
+
+    def positive(v):
+        return v > 0
+
     ts = cs = None
     if "strength" in raw:
         for other in ("tension_strength", "compression_strength"):

@@ -74,14 +74,20 @@ def _load_derivatives(problem: Problem, data: LPData) -> sparse.csr_matrix:
         scale = q.intensity * ref_len / ref_force   # rhs_z = +w share / P
         last = len(on) - 1
         for i, node in enumerate(on):
+            # (column, value) entries of row 2 node + 1: the neighbours' x and its own
+            entries = []
             if i < last:
-                rows.append(2 * node + 1); cols.append(2 * on[i + 1]); vals.append(0.5 * scale)
+                entries.append((2 * on[i + 1], 0.5 * scale))
             if i > 0:
-                rows.append(2 * node + 1); cols.append(2 * on[i - 1]); vals.append(-0.5 * scale)
+                entries.append((2 * on[i - 1], -0.5 * scale))
             if i == 0:
-                rows.append(2 * node + 1); cols.append(2 * node); vals.append(-0.5 * scale)
+                entries.append((2 * node, -0.5 * scale))
             if i == last:
-                rows.append(2 * node + 1); cols.append(2 * node); vals.append(0.5 * scale)
+                entries.append((2 * node, 0.5 * scale))
+            for col, val in entries:
+                rows.append(2 * node + 1)
+                cols.append(col)
+                vals.append(val)
     n2 = 2 * len(xz)
     return sparse.csr_matrix((vals, (rows, cols)), shape=(n2, n2))
 

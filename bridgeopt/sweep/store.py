@@ -253,7 +253,7 @@ def results_frame(sweep: Sweep, rows: dict[str, dict]):
                                                         and c not in inputs
                                                         and c not in RESULT_COLUMNS]
     df = df[first + [c for c in inputs if c in df] + results]
-    for col in df.columns[df.dtypes == object]:
+    for col in df.columns[df.dtypes == object]:  # noqa: E721 (pandas dtype test)
         kinds = {type(v) for v in df[col] if v is not None and v == v}
         if len(kinds) > 1:  # mixed values in one swept key: keep them as text
             df[col] = [None if v is None or v != v else str(v) for v in df[col]]

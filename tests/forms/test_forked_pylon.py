@@ -51,7 +51,7 @@ def cantilever() -> Problem:
                    line_loads=(LineLoad((0.0, 0.0), (A, 0.0), W),), mirror_lines=(0.0,))
 
 
-def head_fan_volume(l: float, h: float, H: float) -> float:
+def head_fan_volume(l: float, h: float, H: float) -> float:  # noqa: E741 (the docstring's l)
     """sigma V / sigma of the module docstring's frame. [m3]"""
     x = A * np.arange(1, N + 1) / N
     p = np.full(N, W * A / N)

@@ -151,7 +151,10 @@ def test_lattice_pairs_finds_candidates_and_nothing_else():
 def test_sub_lattice_interpolation_is_exact_for_a_linear_field():
     i, j = np.meshgrid(np.arange(0, 9, 2), np.arange(0, 7, 2), indexing="ij")
     cpos = np.column_stack([i.ravel(), j.ravel()])
-    field = lambda q: np.column_stack([1.0 + 2.0 * q[:, 0] - 0.5 * q[:, 1], 3.0 * q[:, 1]])
+
+    def field(q):
+        return np.column_stack([1.0 + 2.0 * q[:, 0] - 0.5 * q[:, 1], 3.0 * q[:, 1]])
+
     fi, fj = np.meshgrid(np.arange(9), np.arange(7), indexing="ij")
     fpos = np.column_stack([fi.ravel(), fj.ravel()])
     np.testing.assert_allclose(multilevel.sub_lattice_interpolate(cpos, field(cpos), fpos),
