@@ -11,8 +11,12 @@ are geometry-optimized and the candidates re-built from the new cable.
 
 Usage::
 
-    python bench/explore_hanger_net.py SPAN_M REACH [REACH ...]     # REACH: panels or none
+    python bench/explore_hanger_net.py SPAN_M REACH [REACH ...] [--divisions N]   # REACH: panels or none
     python bench/explore_hanger_net.py SPAN_M --lean LEAN [...] [--gap NODE_GAP]
+
+``--divisions`` (default 30, the acceptance crossing's) sets the grid; the hanger
+panels are the default form's own (one hanger per cable node), so any even number
+of divisions from 4 up works.
 
 The second form solves the package's own suspension form with ``hanger_lean = LEAN``
 (the lean continuation, bridgeopt/forms/hangers.py), its cable nodes at least
@@ -32,14 +36,21 @@ import sys
 import numpy as np
 from bench_form_ratios import crossing
 
-from bridgeopt import SolveError, optimize_layout
+import dataclasses
+
+from bridgeopt import InputError, SolveError, optimize_layout
 from bridgeopt.forms import SuspensionForm, form_problem, solve_form
 from bridgeopt.forms.builder import FrameBuilder, deck_level
 from bridgeopt.forms.suspension import least_lean
 from bridgeopt.geometry.optimize import optimize_geometry
 from bridgeopt.solver.frame import size_frame
 
-PANELS = 15          # hangers per half span at 30 divisions
+
+
+def panels_of(cable: np.ndarray) -> int:
+    """Hanger panels per half span of the default form: one hanger per cable node but the
+    tower top."""
+    return len(cable) - 1
 
 
 def cable_of(design) -> np.ndarray:
@@ -50,13 +61,13 @@ def cable_of(design) -> np.ndarray:
     return design.nodes[idx[np.argsort(design.nodes[idx, 0])]]
 
 
-def net(problem, cable: np.ndarray, reach: float | None, rise: float):
+def net(problem, cable: np.ndarray, reach: float | None, rise: float, panels: int):
     """The candidate frame and its free geometry (cable heights, tower, cable node x)."""
     b = FrameBuilder(problem)
     xs, xe, zd = deck_level(problem)
-    p = (xe - xs) / PANELS
+    p = (xe - xs) / panels
     gap = least_lean(problem, p)   # as the suspension form's own
-    xd = xs + p * np.arange(PANELS + 1)
+    xd = xs + p * np.arange(panels + 1)
     cable = cable.copy()
     for j in range(1, len(cable) - 1):   # off the deck points' verticals
         k = int(np.argmin(np.abs(xd - cable[j, 0])))
@@ -67,7 +78,7 @@ def net(problem, cable: np.ndarray, reach: float | None, rise: float):
     nodes = [b.node(x, z) for x, z in cable]
     b.member(base, nodes[0], "compression", "tower")
     for j in range(1, len(nodes)):
-        for i in range(1, PANELS + 1):
+        for i in range(1, panels + 1):
             if reach is None or abs(xd[i] - cable[j, 0]) <= reach * p + 1e-9:
                 b.member(nodes[j], b.node(xd[i], zd), "tension", "hanger")
     b.chain(nodes, "tension", "cable")
@@ -93,16 +104,21 @@ def parts(design, ref) -> dict:
             for g in ("cable", "hanger", "tower", "deck")}
 
 
-def main(span: float, reaches) -> None:
+def main(span: float, reaches, divisions: int = 30) -> None:
+    if isinstance(divisions, bool) or divisions < 4 or divisions % 2:
+        raise InputError("--divisions", divisions, "an even whole number >= 4 (the half span "
+                         "needs at least 2 hanger panels)")
     logging.disable(logging.WARNING)
-    bridge = crossing(span)
+    bridge = dataclasses.replace(crossing(span), divisions=divisions)
     problem = form_problem(bridge, SuspensionForm())
     ref = optimize_layout(problem)
     one = solve_form(bridge, SuspensionForm(), reference=ref)
-    print(f"{span:g} m: one hanger per cable node {one.ratio:.4f}")
+    panels = panels_of(cable_of(one.design))
+    print(f"{span:g} m, {divisions} divisions ({panels} hanger panels per half span): one "
+          f"hanger per cable node {one.ratio:.4f}")
     for reach in reaches:
         cable, best = cable_of(one.design), one.design
-        frame, moves, nodes = net(problem, cable, reach, 0.5 * span)
+        frame, moves, nodes = net(problem, cable, reach, 0.5 * span, panels)
         start = size_frame(frame)
         for _ in range(8):
             try:
@@ -116,7 +132,7 @@ def main(span: float, reaches) -> None:
             if gain < 1e-4:
                 break
             try:
-                frame, moves, nodes = net(problem, cable, reach, 0.5 * span)
+                frame, moves, nodes = net(problem, cable, reach, 0.5 * span, panels)
             except SolveError:
                 break
         print(f"  reach {reach if reach is not None else 'any'}: LP choice {start.volume / ref.volume:.4f}, "
@@ -146,4 +162,9 @@ if __name__ == "__main__":
         vals = [float(a) for a in args[1:args.index("--gap") if "--gap" in args else None]]
         leans(float(sys.argv[1]), vals, gap)
     else:
-        main(float(sys.argv[1]), [None if r == "none" else float(r) for r in args])
+        divisions = 30
+        if "--divisions" in args:
+            at = args.index("--divisions")
+            divisions = int(args[at + 1])
+            args = args[:at] + args[at + 2:]
+        main(float(sys.argv[1]), [None if r == "none" else float(r) for r in args], divisions)
