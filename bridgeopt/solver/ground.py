@@ -163,15 +163,19 @@ def candidate_pairs(problem: Problem, grid: Grid) -> tuple[np.ndarray, np.ndarra
     order = np.lexsort((grid.ij[:, 1], grid.ij[:, 0]))  # by i, then j
     ij = grid.ij[order]
     out_a, out_b = [], []
+    # coprime[|di|, |dj|]: no third lattice node on the segment (a table lookup, not a gcd
+    # per pair)
+    span = ij.max(axis=0) - ij.min(axis=0) + 1 if n else np.ones(2, dtype=np.int64)
+    coprime = np.gcd.outer(np.arange(span[0]), np.arange(span[1])) == 1
     rows = max(1, PAIR_CHUNK // max(n, 1))
     for start in range(0, n, rows):
         stop = min(n, start + rows)
         ia = np.arange(start, stop)[:, None]
         ib = np.arange(n)[None, :]
         mask = ib > ia
-        di = ij[None, :, 0] - ij[start:stop, None, 0]
-        dj = ij[None, :, 1] - ij[start:stop, None, 1]
-        mask &= np.gcd(np.abs(di), np.abs(dj)) == 1
+        di = np.abs(ij[None, :, 0] - ij[start:stop, None, 0])
+        dj = np.abs(ij[None, :, 1] - ij[start:stop, None, 1])
+        mask &= coprime[di, dj]
         aa, bb = np.nonzero(mask)
         out_a.append(order[aa + start].astype(np.int32))
         out_b.append(order[bb].astype(np.int32))

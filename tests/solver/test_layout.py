@@ -125,3 +125,20 @@ def test_line_load_is_lumped_with_its_resultant():
     f = nodal_loads(problem, build_grid(problem))
     assert f[:, 1].sum() == pytest.approx(-30.0, rel=1e-12)
     assert f[:, 0].sum() == 0.0
+
+
+def test_candidate_pairs_match_a_brute_force_gcd_enumeration():
+    """Every pair of nodes with no third lattice node between them, once each, left end first:
+    checked against a plain double loop with Python's math.gcd (stdlib reference)."""
+    problem = _bridge(divisions=8, depth=0.0).to_problem()
+    grid = build_grid(problem)
+    a, b = candidate_pairs(problem, grid)
+    got = {(int(p), int(q)) for p, q in zip(a, b)}
+    assert len(got) == len(a)
+    want = set()
+    for p in range(grid.n):
+        for q in range(grid.n):
+            d = grid.ij[q] - grid.ij[p]
+            if (d[0] > 0 or (d[0] == 0 and d[1] > 0)) and math.gcd(int(d[0]), int(d[1])) == 1:
+                want.add((p, q))
+    assert got == want
